@@ -1,0 +1,23 @@
+import { createClient } from '@libsql/client';
+import { drizzle } from 'drizzle-orm/libsql';
+import { getEnv } from '../server/env';
+import * as schema from './schema';
+
+export type Database = ReturnType<typeof createDatabase>;
+
+/** Opens the database named by `url` (file:, libsql:, http:) with our schema attached. */
+export function createDatabase(url: string, authToken?: string) {
+  const client = createClient({ url, authToken });
+  return drizzle(client, { schema });
+}
+
+let instance: Database | undefined;
+
+/** The process-wide database handle, opened on first use from DATABASE_URL. */
+export function getDb(): Database {
+  if (!instance) {
+    const env = getEnv();
+    instance = createDatabase(env.DATABASE_URL, env.DATABASE_AUTH_TOKEN);
+  }
+  return instance;
+}

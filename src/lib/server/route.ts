@@ -1,0 +1,100 @@
+import type { APIContext, APIRoute } from 'astro';
+import type { z } from 'zod';
+import { can, type Permission, type Role } from '../auth/permissions';
+import { ApiError } from './errors';
+
+export interface Actor {
+  userId: string;
+  userName: string;
+  organizationId: string;
+  role: Role;
+}
+
+export interface RouteContext {
+  ctx: APIContext;
+  actor: Actor;
+}
+
+export interface PublicRouteContext {
+  ctx: APIContext;
+}
+
+const routeMarker = Symbol.for('quayside.route');
+
+/**
+ * Defines an API handler that requires a signed-in member of an organisation whose role has
+ * `permission`. Signed out → 401; no organisation or role lacks the permission → 403.
+ * Every handler under src/pages/api is built with this or `definePublicRoute` (a test
+ * checks it), so a route that does not name its permission cannot exist.
+ */
+export function defineRoute(
+  permission: Permission,
+  handler: (rc: RouteContext) => Promise<Response> | Response,
+): APIRoute {
+  const route: APIRoute = (ctx) =>
+    respond(async () => {
+      const { user, organization, role } = ctx.locals;
+      if (!user) throw new ApiError('unauthenticated', 'Sign in to continue.');
+      if (!organization || !role) {
+        throw new ApiError('forbidden', 'You are not a member of any label on Quayside.');
+      }
+      if (!can(role, permission)) {
+        throw new ApiError('forbidden', `Your role (${role}) may not do this (${permission}).`);
+      }
+      return handler({
+        ctx,
+        actor: { userId: user.id, userName: user.name, organizationId: organization.id, role },
+      });
+    });
+  return Object.assign(route, { [routeMarker]: permission });
+}
+
+/** An API handler anyone may call (sign-in, accepting an invitation). Say why at the call. */
+export function definePublicRoute(
+  handler: (rc: PublicRouteContext) => Promise<Response> | Response,
+): APIRoute {
+  const route: APIRoute = (ctx) => respond(async () => handler({ ctx }));
+  return Object.assign(route, { [routeMarker]: 'public' });
+}
+
+/** The permission a route was defined with, or undefined for a bare handler. */
+export function routePermission(route: unknown): string | undefined {
+  if (typeof route !== 'function') return undefined;
+  return (route as unknown as Record<symbol, string | undefined>)[routeMarker];
+}
+
+async function respond(run: () => Promise<Response> | Response): Promise<Response> {
+  try {
+    return await run();
+  } catch (error) {
+    if (error instanceof ApiError) return error.toResponse();
+    console.error('[api] unexpected error', error);
+    return new ApiError('internal', 'Something went wrong on our side; nothing was changed.').toResponse();
+  }
+}
+
+/** Parses `value` with `schema` or throws a 400 listing each problem. */
+export function parseOrThrow<T extends z.ZodType>(schema: T, value: unknown, what: string): z.infer<T> {
+  const parsed = schema.safeParse(value);
+  if (!parsed.success) {
+    throw new ApiError(
+      'invalid_request',
+      `The ${what} is not valid.`,
+      parsed.error.issues.map((i) => ({ path: i.path.join('.'), message: i.message })),
+    );
+  }
+  return parsed.data;
+}
+
+/** Reads a JSON body, refusing non-JSON content types and malformed JSON with a 400/415. */
+export async function readJson(request: Request): Promise<unknown> {
+  const type = request.headers.get('content-type') ?? '';
+  if (!type.toLowerCase().startsWith('application/json')) {
+    throw new ApiError('unsupported_media_type', 'Send the request body as application/json.');
+  }
+  try {
+    return await request.json();
+  } catch {
+    throw new ApiError('invalid_request', 'The request body is not valid JSON.');
+  }
+}
