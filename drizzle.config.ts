@@ -5,6 +5,7 @@ export default defineConfig({
   schema: './src/lib/db/schema.ts',
   out: './drizzle',
   dbCredentials: {
-    url: process.env.DATABASE_URL ?? `file:${new URL('./data/quayside.db', import.meta.url).pathname}`,
+    url:
+      process.env.DATABASE_URL ?? `file:${new URL('./data/quayside.db', import.meta.url).pathname}`,
   },
 });

@@ -37,8 +37,12 @@ async function main() {
   process.on('SIGINT', () => void stop('SIGINT'));
   process.on('SIGTERM', () => void stop('SIGTERM'));
 
-  if (fakes.s3) console.log(`S3 fake       ${fakes.s3.endpoint} (bucket ${fakes.s3.bucket}, files in ${join(dataDir, 's3')})`);
-  if (fakes.mail) console.log(`Mail fake     ${fakes.mail.smtpUrl} (messages at ${fakes.mail.httpUrl}/messages)`);
+  if (fakes.s3)
+    console.log(
+      `S3 fake       ${fakes.s3.endpoint} (bucket ${fakes.s3.bucket}, files in ${join(dataDir, 's3')})`,
+    );
+  if (fakes.mail)
+    console.log(`Mail fake     ${fakes.mail.smtpUrl} (messages at ${fakes.mail.httpUrl}/messages)`);
 
   await migrateDatabase();
   console.log(`Database      ${process.env.DATABASE_URL} (migrated)`);
@@ -55,7 +59,8 @@ async function main() {
   const publicUrl = process.env.BETTER_AUTH_URL ?? url;
   console.log(`\nQuayside is running at ${publicUrl}\n`);
   console.log('Demo sign-ins (password for all: %s)', seeded.password);
-  for (const u of seeded.users) console.log(`  ${u.role.padEnd(12)} ${u.email.padEnd(30)} ${u.name}`);
+  for (const u of seeded.users)
+    console.log(`  ${u.role.padEnd(12)} ${u.email.padEnd(30)} ${u.name}`);
   if (fakes.mail) console.log(`\nSent mail:    ${publicUrl}/dev/mail`);
   console.log('\nPress Ctrl-C to stop.');
 }

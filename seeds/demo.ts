@@ -6,6 +6,7 @@
  * registrant prefix XQ-BRK.
  */
 import { createHash } from 'node:crypto';
+import type { S3Client } from '@aws-sdk/client-s3';
 import { eq } from 'drizzle-orm';
 import type { Auth } from '../src/lib/auth/auth';
 import type { Role } from '../src/lib/auth/permissions';
@@ -23,7 +24,6 @@ import {
   user,
 } from '../src/lib/db/schema';
 import { objectExists, putObject } from '../src/lib/storage/s3';
-import type { S3Client } from '@aws-sdk/client-s3';
 import { type SynthSpec, synthesizeWav } from './synth';
 
 export const demoPassword = 'quayside-demo';
@@ -88,7 +88,13 @@ export const demoReleases: DemoRelease[] = [
         composer: 'Jonah Pell',
         gapBeforeFrames: 150,
         // Left at 48 kHz on purpose: the disc profile should catch it.
-        audio: { sampleRateHz: 48_000, bitDepth: 16, seconds: 10, chordHz: [196, 246.94, 293.66], peakDbfs: -1 },
+        audio: {
+          sampleRateHz: 48_000,
+          bitDepth: 16,
+          seconds: 10,
+          chordHz: [196, 246.94, 293.66],
+          peakDbfs: -1,
+        },
       },
       {
         title: 'The Long Swell',
@@ -187,7 +193,11 @@ export async function seedDemo(deps: {
   s3: { client: S3Client; bucket: string };
 }): Promise<SeedResult> {
   const { db, auth, s3 } = deps;
-  const [existing] = await db.select().from(organization).where(eq(organization.id, label.id)).limit(1);
+  const [existing] = await db
+    .select()
+    .from(organization)
+    .where(eq(organization.id, label.id))
+    .limit(1);
   let created = false;
   if (!existing) {
     await createScenario(db, auth);
@@ -200,7 +210,11 @@ export async function seedDemo(deps: {
 async function createScenario(db: Database, auth: Auth): Promise<void> {
   const userIds = new Map<string, string>();
   for (const u of demoUsers) {
-    const [found] = await db.select({ id: user.id }).from(user).where(eq(user.email, u.email)).limit(1);
+    const [found] = await db
+      .select({ id: user.id })
+      .from(user)
+      .where(eq(user.email, u.email))
+      .limit(1);
     if (found) {
       userIds.set(u.email, found.id);
       continue;
@@ -272,7 +286,11 @@ async function createScenario(db: Database, auth: Auth): Promise<void> {
           releaseId: r.id,
           recordingId,
           position: position + 1,
-          discOrSide: r.profiles.some((p) => p.startsWith('vinyl')) ? (position < 2 ? 'A' : 'B') : '1',
+          discOrSide: r.profiles.some((p) => p.startsWith('vinyl'))
+            ? position < 2
+              ? 'A'
+              : 'B'
+            : '1',
           gapBeforeFrames: t.gapBeforeFrames,
         });
         const wav = synthesizeWav({ ...t.audio, seed: seed++ });
@@ -309,7 +327,10 @@ function demoObjectKey(recordingId: string, fileName: string): string {
 }
 
 /** Uploads the synthesised file for each demo recording whose object is missing. */
-async function uploadMissingAudio(db: Database, s3: { client: S3Client; bucket: string }): Promise<number> {
+async function uploadMissingAudio(
+  db: Database,
+  s3: { client: S3Client; bucket: string },
+): Promise<number> {
   let uploaded = 0;
   let seed = 1;
   for (const r of demoReleases) {
@@ -326,7 +347,8 @@ async function uploadMissingAudio(db: Database, s3: { client: S3Client; bucket: 
       if (!row || (await objectExists(s3, row.objectKey))) continue;
       const wav = synthesizeWav({ ...t.audio, seed: currentSeed });
       const sha = createHash('sha256').update(wav).digest('hex');
-      if (sha !== row.sha256) throw new Error(`demo audio for ${recordingId} no longer matches its checksum`);
+      if (sha !== row.sha256)
+        throw new Error(`demo audio for ${recordingId} no longer matches its checksum`);
       await putObject(s3, row.objectKey, wav, 'audio/wav');
       uploaded++;
     }

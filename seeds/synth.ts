@@ -2,9 +2,11 @@
  * Synthesised demo audio: chords, a little noise and fades, written as WAV with wavefile.
  * Deterministic for a given seed, so re-seeding produces byte-identical files.
  */
-import wavefile from 'wavefile';
+import { createRequire } from 'node:module';
+import type wavefileTypes from 'wavefile';
 
-const { WaveFile } = wavefile;
+// wavefile is CommonJS; loading it with require behaves the same under tsx and Vite.
+const { WaveFile } = createRequire(import.meta.url)('wavefile') as typeof wavefileTypes;
 
 export interface SynthSpec {
   seconds: number;

@@ -10,7 +10,8 @@ export const onRequest = defineMiddleware(async (context, next) => {
 
   const isApi = pathname.startsWith('/api/');
   if (!isApi && !context.locals.user && !publicPages.some((p) => p.test(pathname))) {
-    const nextPath = pathname === '/' ? '' : `?next=${encodeURIComponent(pathname + context.url.search)}`;
+    const nextPath =
+      pathname === '/' ? '' : `?next=${encodeURIComponent(pathname + context.url.search)}`;
     return context.redirect(`/sign-in${nextPath}`, 302);
   }
   const response = await next();

@@ -98,7 +98,10 @@ export async function startMailFake(options: {
 }
 
 async function readAll(directory: string): Promise<StoredMail[]> {
-  const names = (await readdir(directory)).filter((n) => n.endsWith('.json')).sort().reverse();
+  const names = (await readdir(directory))
+    .filter((n) => n.endsWith('.json'))
+    .sort()
+    .reverse();
   const mails: StoredMail[] = [];
   for (const name of names) {
     mails.push(JSON.parse(await readFile(join(directory, name), 'utf8')) as StoredMail);

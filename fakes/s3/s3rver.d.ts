@@ -1,5 +1,6 @@
 declare module 's3rver' {
   import type { AddressInfo } from 'node:net';
+
   interface S3rverOptions {
     address?: string;
     port?: number;

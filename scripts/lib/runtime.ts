@@ -130,13 +130,19 @@ export async function needsBuild(): Promise<boolean> {
 /** Runs `astro build` in the project root, streaming its output. */
 export function buildApp(): Promise<void> {
   return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, [join(projectRoot, 'node_modules/astro/astro.js'), 'build'], {
-      cwd: projectRoot,
-      stdio: ['ignore', 'inherit', 'inherit'],
-      env: { ...process.env, ASTRO_TELEMETRY_DISABLED: '1' },
-    });
+    const child = spawn(
+      process.execPath,
+      [join(projectRoot, 'node_modules/astro/astro.js'), 'build'],
+      {
+        cwd: projectRoot,
+        stdio: ['ignore', 'inherit', 'inherit'],
+        env: { ...process.env, ASTRO_TELEMETRY_DISABLED: '1' },
+      },
+    );
     child.once('error', reject);
-    child.once('exit', (code) => (code === 0 ? resolve() : reject(new Error(`astro build exited with ${code}`))));
+    child.once('exit', (code) =>
+      code === 0 ? resolve() : reject(new Error(`astro build exited with ${code}`)),
+    );
   });
 }
 

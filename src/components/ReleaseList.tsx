@@ -32,10 +32,14 @@ function ReleaseTable() {
   const { releases } = query.data;
   if (releases.length === 0) {
     return (
-      <div className="rounded-lg border border-dashed border-slate-light p-10 text-center" data-testid="releases-empty">
+      <div
+        className="rounded-lg border border-dashed border-slate-light p-10 text-center"
+        data-testid="releases-empty"
+      >
         <p className="font-medium">No releases to show yet.</p>
         <p className="mt-1 text-sm text-slate">
-          Releases appear here when your label creates them, or — for distributors — when a label shares one with you.
+          Releases appear here when your label creates them, or — for distributors — when a label
+          shares one with you.
         </p>
       </div>
     );
@@ -45,20 +49,41 @@ function ReleaseTable() {
       <table className="w-full text-left text-sm" data-testid="release-table">
         <thead className="border-b border-mist bg-sand/60 text-xs uppercase tracking-wide text-slate">
           <tr>
-            <th scope="col" className="px-4 py-3 font-medium">Release</th>
-            <th scope="col" className="px-4 py-3 font-medium">Cat. no.</th>
-            <th scope="col" className="px-4 py-3 font-medium">State</th>
-            <th scope="col" className="px-4 py-3 font-medium">Target profiles</th>
-            <th scope="col" className="px-4 py-3 text-right font-medium">Tracks</th>
-            <th scope="col" className="px-4 py-3 text-right font-medium">Running time</th>
-            <th scope="col" className="px-4 py-3 font-medium">Release date</th>
+            <th scope="col" className="px-4 py-3 font-medium">
+              Release
+            </th>
+            <th scope="col" className="px-4 py-3 font-medium">
+              Cat. no.
+            </th>
+            <th scope="col" className="px-4 py-3 font-medium">
+              State
+            </th>
+            <th scope="col" className="px-4 py-3 font-medium">
+              Target profiles
+            </th>
+            <th scope="col" className="px-4 py-3 text-right font-medium">
+              Tracks
+            </th>
+            <th scope="col" className="px-4 py-3 text-right font-medium">
+              Running time
+            </th>
+            <th scope="col" className="px-4 py-3 font-medium">
+              Release date
+            </th>
           </tr>
         </thead>
         <tbody>
           {releases.map((r) => (
-            <tr key={r.id} className="border-b border-mist last:border-0 hover:bg-paper" data-testid="release-row">
+            <tr
+              key={r.id}
+              className="border-b border-mist last:border-0 hover:bg-paper"
+              data-testid="release-row"
+            >
               <td className="px-4 py-3">
-                <a href={`/releases/${r.id}`} className="font-medium text-ink underline-offset-2 hover:underline">
+                <a
+                  href={`/releases/${r.id}`}
+                  className="font-medium text-ink underline-offset-2 hover:underline"
+                >
                   {r.title}
                 </a>
                 <div className="text-slate">{r.artist}</div>
@@ -81,7 +106,9 @@ function ReleaseTable() {
                 )}
               </td>
               <td className="figures px-4 py-3 text-right">{r.trackCount}</td>
-              <td className="figures px-4 py-3 text-right">{formatDuration(r.totalDurationSeconds)}</td>
+              <td className="figures px-4 py-3 text-right">
+                {formatDuration(r.totalDurationSeconds)}
+              </td>
               <td className="figures px-4 py-3">{formatDate(r.releaseDate)}</td>
             </tr>
           ))}

@@ -35,21 +35,32 @@ function RunningOrder({ release }: { release: ReleaseDetail }) {
       <h2 id="running-order" className="text-sm font-semibold uppercase tracking-wide text-slate">
         Running order
       </h2>
-      <div className="mt-2 flex h-10 w-full overflow-hidden rounded border border-mist bg-sand/50" role="img"
-        aria-label={`${items.length} tracks, ${formatDuration(total)} including gaps`}>
+      <div
+        className="mt-2 flex h-10 w-full overflow-hidden rounded border border-mist bg-sand/50"
+        role="img"
+        aria-label={`${items.length} tracks, ${formatDuration(total)} including gaps`}
+      >
         {items.map((i, index) => (
-          <div key={i.id} className="flex h-full" style={{ width: `${((i.gap + i.seconds) / total) * 100}%` }}>
+          <div
+            key={i.id}
+            className="flex h-full"
+            style={{ width: `${((i.gap + i.seconds) / total) * 100}%` }}
+          >
             <div style={{ width: `${(i.gap / (i.gap + i.seconds || 1)) * 100}%` }} />
             <div
               className={`flex h-full flex-1 items-center overflow-hidden border-x border-paper px-1.5 text-xs text-sand ${index % 2 ? 'bg-slate' : 'bg-ink-soft'}`}
               title={`${index + 1}. ${i.title} (${formatDuration(i.seconds)})`}
             >
-              <span className="truncate">{index + 1}. {i.title}</span>
+              <span className="truncate">
+                {index + 1}. {i.title}
+              </span>
             </div>
           </div>
         ))}
       </div>
-      <p className="figures mt-1 text-right text-xs text-slate">Total {formatDuration(total)} including gaps</p>
+      <p className="figures mt-1 text-right text-xs text-slate">
+        Total {formatDuration(total)} including gaps
+      </p>
     </section>
   );
 }
@@ -59,14 +70,23 @@ function ReleaseBody({ releaseId }: { releaseId: string }) {
     queryKey: ['release', releaseId],
     queryFn: () => getJson(`/api/releases/${encodeURIComponent(releaseId)}`, releaseDetailSchema),
   });
-  if (query.isPending) return <p className="py-12 text-center text-slate" aria-live="polite">Loading release…</p>;
+  if (query.isPending)
+    return (
+      <p className="py-12 text-center text-slate" aria-live="polite">
+        Loading release…
+      </p>
+    );
   if (query.isError) {
     const notFound = query.error instanceof ApiRequestError && query.error.status === 404;
     return (
       <div role="alert" className="rounded border border-fail/40 bg-fail/5 p-4 text-fail">
-        <p className="font-medium">{notFound ? 'This release is not available to you.' : 'The release could not be loaded.'}</p>
+        <p className="font-medium">
+          {notFound ? 'This release is not available to you.' : 'The release could not be loaded.'}
+        </p>
         <p className="mt-1 text-sm">{query.error.message}</p>
-        <a href="/releases" className="mt-3 inline-block underline">Back to releases</a>
+        <a href="/releases" className="mt-3 inline-block underline">
+          Back to releases
+        </a>
       </div>
     );
   }
@@ -76,7 +96,9 @@ function ReleaseBody({ releaseId }: { releaseId: string }) {
       <header className="flex flex-wrap items-start justify-between gap-4">
         <div>
           <p className="text-sm text-slate">{r.labelName}</p>
-          <h1 className="text-3xl font-semibold" data-testid="release-title">{r.title}</h1>
+          <h1 className="text-3xl font-semibold" data-testid="release-title">
+            {r.title}
+          </h1>
           <p className="text-lg text-ink-soft">{r.artist}</p>
         </div>
         <ReleaseStateBadge state={r.state} />
@@ -88,12 +110,17 @@ function ReleaseBody({ releaseId }: { releaseId: string }) {
         <Fact label="Genre" value={r.genre ?? '–'} />
         <Fact label="℗ line" value={r.pLine ?? '–'} />
         <Fact label="© line" value={r.cLine ?? '–'} />
-        <Fact label="Target profiles" value={r.profileIds.map(formatProfileId).join(', ') || 'None chosen'} />
+        <Fact
+          label="Target profiles"
+          value={r.profileIds.map(formatProfileId).join(', ') || 'None chosen'}
+        />
         <Fact label="Running time" value={formatDuration(r.totalDurationSeconds)} mono />
       </dl>
       <RunningOrder release={r} />
       <section aria-labelledby="tracks" className="mt-8">
-        <h2 id="tracks" className="text-sm font-semibold uppercase tracking-wide text-slate">Tracks</h2>
+        <h2 id="tracks" className="text-sm font-semibold uppercase tracking-wide text-slate">
+          Tracks
+        </h2>
         {r.tracks.length === 0 ? (
           <p className="mt-2 rounded border border-dashed border-slate-light p-6 text-center text-slate">
             No tracks yet. The engineer adds tracks by uploading the final masters.
@@ -103,36 +130,67 @@ function ReleaseBody({ releaseId }: { releaseId: string }) {
             <table className="w-full text-left text-sm" data-testid="track-table">
               <thead className="border-b border-mist bg-sand/60 text-xs uppercase tracking-wide text-slate">
                 <tr>
-                  <th scope="col" className="px-3 py-2 text-right font-medium">#</th>
-                  <th scope="col" className="px-3 py-2 font-medium">Side/disc</th>
-                  <th scope="col" className="px-3 py-2 font-medium">Title</th>
-                  <th scope="col" className="px-3 py-2 font-medium">ISRC</th>
-                  <th scope="col" className="px-3 py-2 text-right font-medium">Gap before</th>
-                  <th scope="col" className="px-3 py-2 text-right font-medium">Length</th>
-                  <th scope="col" className="px-3 py-2 font-medium">Master file</th>
+                  <th scope="col" className="px-3 py-2 text-right font-medium">
+                    #
+                  </th>
+                  <th scope="col" className="px-3 py-2 font-medium">
+                    Side/disc
+                  </th>
+                  <th scope="col" className="px-3 py-2 font-medium">
+                    Title
+                  </th>
+                  <th scope="col" className="px-3 py-2 font-medium">
+                    ISRC
+                  </th>
+                  <th scope="col" className="px-3 py-2 text-right font-medium">
+                    Gap before
+                  </th>
+                  <th scope="col" className="px-3 py-2 text-right font-medium">
+                    Length
+                  </th>
+                  <th scope="col" className="px-3 py-2 font-medium">
+                    Master file
+                  </th>
                 </tr>
               </thead>
               <tbody>
                 {r.tracks.map((t) => (
-                  <tr key={t.id} className="border-b border-mist last:border-0" data-testid="track-row">
+                  <tr
+                    key={t.id}
+                    className="border-b border-mist last:border-0"
+                    data-testid="track-row"
+                  >
                     <td className="figures px-3 py-2 text-right">{t.position}</td>
                     <td className="figures px-3 py-2">{t.discOrSide}</td>
                     <td className="px-3 py-2">
-                      <div className="font-medium">{t.title}{t.versionTitle ? ` (${t.versionTitle})` : ''}</div>
+                      <div className="font-medium">
+                        {t.title}
+                        {t.versionTitle ? ` (${t.versionTitle})` : ''}
+                      </div>
                       <div className="text-xs text-slate">
-                        {t.credits.filter((c) => c.role === 'composer').map((c) => c.name).join(', ') || 'No composer credited'}
+                        {t.credits
+                          .filter((c) => c.role === 'composer')
+                          .map((c) => c.name)
+                          .join(', ') || 'No composer credited'}
                       </div>
                     </td>
                     <td className="figures px-3 py-2">{formatIsrcForDisplay(t.isrc)}</td>
-                    <td className="figures px-3 py-2 text-right">{formatFramesAsSeconds(t.gapBeforeFrames)}</td>
-                    <td className="figures px-3 py-2 text-right">{formatDuration(t.audio?.durationSeconds)}</td>
+                    <td className="figures px-3 py-2 text-right">
+                      {formatFramesAsSeconds(t.gapBeforeFrames)}
+                    </td>
+                    <td className="figures px-3 py-2 text-right">
+                      {formatDuration(t.audio?.durationSeconds)}
+                    </td>
                     <td className="px-3 py-2 text-xs">
                       {t.audio ? (
                         <>
                           <div className="truncate">{t.audio.originalName}</div>
                           <div className="figures text-slate">
-                            {t.audio.sampleRateHz ? `${(t.audio.sampleRateHz / 1000).toFixed(1)} kHz` : '?'} ·{' '}
-                            {t.audio.bitsPerSample ?? '?'}-bit · {t.audio.channels === 2 ? 'stereo' : `${t.audio.channels} ch`}
+                            {t.audio.sampleRateHz
+                              ? `${(t.audio.sampleRateHz / 1000).toFixed(1)} kHz`
+                              : '?'}{' '}
+                            · {t.audio.bitsPerSample ?? '?'}-bit ·{' '}
+                            {t.audio.channels === 2 ? 'stereo' : `${t.audio.channels} ch`}
                           </div>
                         </>
                       ) : (

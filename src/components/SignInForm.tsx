@@ -2,6 +2,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { z } from 'zod';
+import { useHydrated } from './use-hydrated';
 
 const signInSchema = z.object({
   email: z.email('Enter the e-mail address you were invited with'),
@@ -15,6 +16,7 @@ function safeNext(next: string | null): string {
 }
 
 export default function SignInForm({ next }: { next: string | null }) {
+  const hydrated = useHydrated();
   const [failure, setFailure] = useState<string | null>(null);
   const {
     register,
@@ -87,14 +89,17 @@ export default function SignInForm({ next }: { next: string | null }) {
       </div>
       <div aria-live="polite">
         {failure && (
-          <p role="alert" className="rounded border border-fail/40 bg-fail/5 px-3 py-2 text-sm text-fail">
+          <p
+            role="alert"
+            className="rounded border border-fail/40 bg-fail/5 px-3 py-2 text-sm text-fail"
+          >
             {failure}
           </p>
         )}
       </div>
       <button
         type="submit"
-        disabled={isSubmitting}
+        disabled={!hydrated || isSubmitting}
         className="w-full rounded bg-buoy px-4 py-2 font-medium text-white hover:bg-buoy-dark disabled:opacity-60"
       >
         {isSubmitting ? 'Signing in…' : 'Sign in'}

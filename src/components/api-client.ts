@@ -7,7 +7,12 @@ export class ApiRequestError extends Error {
   readonly code: string;
   readonly issues: { path: string; message: string }[];
 
-  constructor(status: number, code: string, message: string, issues: { path: string; message: string }[] = []) {
+  constructor(
+    status: number,
+    code: string,
+    message: string,
+    issues: { path: string; message: string }[] = [],
+  ) {
     super(message);
     this.status = status;
     this.code = code;
@@ -22,7 +27,11 @@ async function toError(response: Response): Promise<ApiRequestError> {
     const { code, message, issues } = parsed.data.error;
     return new ApiRequestError(response.status, code, message, issues);
   }
-  return new ApiRequestError(response.status, 'http_error', `The server answered ${response.status}.`);
+  return new ApiRequestError(
+    response.status,
+    'http_error',
+    `The server answered ${response.status}.`,
+  );
 }
 
 /** GETs `url` and parses the JSON answer with `schema`. */

@@ -114,7 +114,9 @@ export const membersResponseSchema = z.object({
 export type MembersResponse = z.infer<typeof membersResponseSchema>;
 
 export const inviteRequestSchema = z.object({
-  email: z.email('Enter an e-mail address such as name@example.com').transform((s) => s.toLowerCase()),
+  email: z
+    .email('Enter an e-mail address such as name@example.com')
+    .transform((s) => s.toLowerCase()),
   role: z.enum(['admin', 'engineer', 'coordinator', 'distributor'], {
     error: 'Choose one of: admin, engineer, coordinator, distributor',
   }),
@@ -122,10 +124,7 @@ export const inviteRequestSchema = z.object({
 
 export const acceptInvitationRequestSchema = z.object({
   name: z.string().trim().min(1, 'Enter your name').max(120),
-  password: z
-    .string()
-    .min(10, 'Use at least 10 characters')
-    .max(128, 'Use at most 128 characters'),
+  password: z.string().min(10, 'Use at least 10 characters').max(128, 'Use at most 128 characters'),
 });
 
 export const invitationPreviewSchema = z.object({

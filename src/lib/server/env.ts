@@ -8,12 +8,17 @@ import { z } from 'zod';
 const envSchema = z.object({
   DATABASE_URL: z
     .string({ error: 'DATABASE_URL is required (file:/abs/path.db or libsql://…)' })
-    .regex(/^(file:|libsql:|https?:|wss?:)/, 'DATABASE_URL must start with file:, libsql:, http(s): or ws(s):'),
+    .regex(
+      /^(file:|libsql:|https?:|wss?:)/,
+      'DATABASE_URL must start with file:, libsql:, http(s): or ws(s):',
+    ),
   DATABASE_AUTH_TOKEN: z.string().optional(),
   BETTER_AUTH_SECRET: z
     .string({ error: 'BETTER_AUTH_SECRET is required (32+ random characters)' })
     .min(32, 'BETTER_AUTH_SECRET must be at least 32 characters'),
-  BETTER_AUTH_URL: z.url({ error: 'BETTER_AUTH_URL must be the public URL, e.g. http://localhost:4321' }),
+  BETTER_AUTH_URL: z.url({
+    error: 'BETTER_AUTH_URL must be the public URL, e.g. http://localhost:4321',
+  }),
   S3_ENDPOINT: z.url({ error: 'S3_ENDPOINT must be a URL, e.g. http://127.0.0.1:4569' }),
   S3_REGION: z.string().default('us-east-1'),
   S3_BUCKET: z.string().min(3).default('quayside'),

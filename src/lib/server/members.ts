@@ -27,7 +27,9 @@ export async function listMembers(actor: Actor): Promise<MembersResponse> {
   const invitations = await db
     .select()
     .from(invitation)
-    .where(and(eq(invitation.organizationId, actor.organizationId), eq(invitation.status, 'pending')))
+    .where(
+      and(eq(invitation.organizationId, actor.organizationId), eq(invitation.status, 'pending')),
+    )
     .orderBy(asc(invitation.email));
   return {
     members: members.map((m) => ({ ...m, joinedAt: m.joinedAt.toISOString() })),
@@ -58,7 +60,12 @@ export async function inviteMember(
   try {
     const created = await getAuth().api.createInvitation({
       headers,
-      body: { email: input.email, role: input.role, organizationId: actor.organizationId, resend: true },
+      body: {
+        email: input.email,
+        role: input.role,
+        organizationId: actor.organizationId,
+        resend: true,
+      },
     });
     await recordAudit(db, {
       organizationId: actor.organizationId,
@@ -90,7 +97,11 @@ export async function previewInvitation(id: string) {
     .innerJoin(organization, eq(organization.id, invitation.organizationId))
     .where(eq(invitation.id, id))
     .limit(1);
-  if (!row) throw new ApiError('not_found', 'This invitation does not exist. Ask your label admin for a new one.');
+  if (!row)
+    throw new ApiError(
+      'not_found',
+      'This invitation does not exist. Ask your label admin for a new one.',
+    );
   const expired = row.inv.expiresAt.getTime() < Date.now();
   return {
     id: row.inv.id,
@@ -112,12 +123,22 @@ export async function acceptInvitation(
 ): Promise<Headers> {
   const preview = await previewInvitation(id);
   if (preview.status !== 'pending') {
-    throw new ApiError('conflict', `This invitation is ${preview.status}. Ask your label admin for a new one.`);
+    throw new ApiError(
+      'conflict',
+      `This invitation is ${preview.status}. Ask your label admin for a new one.`,
+    );
   }
   const db = getDb();
-  const [taken] = await db.select({ id: user.id }).from(user).where(eq(user.email, preview.email)).limit(1);
+  const [taken] = await db
+    .select({ id: user.id })
+    .from(user)
+    .where(eq(user.email, preview.email))
+    .limit(1);
   if (taken) {
-    throw new ApiError('conflict', `An account for ${preview.email} already exists; sign in instead.`);
+    throw new ApiError(
+      'conflict',
+      `An account for ${preview.email} already exists; sign in instead.`,
+    );
   }
   const [inv] = await db.select().from(invitation).where(eq(invitation.id, id)).limit(1);
   if (!inv) throw new ApiError('not_found', 'This invitation does not exist.');

@@ -2,7 +2,14 @@ import { and, asc, desc, eq, inArray, max, sql } from 'drizzle-orm';
 import type { ReleaseDetail, ReleaseSummary, Track } from '../api/schemas';
 import { seesOnlySharedReleases } from '../auth/permissions';
 import type { Database } from '../db/client';
-import { audioFiles, recordings, releaseProfiles, releaseShares, releases, tracks } from '../db/schema';
+import {
+  audioFiles,
+  recordings,
+  releaseProfiles,
+  releaseShares,
+  releases,
+  tracks,
+} from '../db/schema';
 import type { Actor } from './route';
 
 /** Condition limiting releases to what `actor` may see: their organisation, and for
@@ -10,13 +17,7 @@ import type { Actor } from './route';
 function visibleTo(actor: Actor) {
   const inOrg = eq(releases.organizationId, actor.organizationId);
   if (!seesOnlySharedReleases(actor.role)) return inOrg;
-  return and(
-    inOrg,
-    inArray(
-      releases.id,
-      sqlSharedWith(actor.userId),
-    ),
-  );
+  return and(inOrg, inArray(releases.id, sqlSharedWith(actor.userId)));
 }
 
 function sqlSharedWith(userId: string) {
@@ -105,11 +106,17 @@ export async function getRelease(
   const profiles = await loadProfiles(db, [row.id]);
   const trackRows = await loadTracks(db, [row.id]);
   const seconds = trackRows.reduce<number | null>(
-    (sum, t) => (sum === null || t.audio?.durationSeconds == null ? null : sum + t.audio.durationSeconds),
+    (sum, t) =>
+      sum === null || t.audio?.durationSeconds == null ? null : sum + t.audio.durationSeconds,
     0,
   );
   return {
-    ...toSummary(row, profiles.get(row.id) ?? [], trackRows.length, trackRows.length ? seconds : null),
+    ...toSummary(
+      row,
+      profiles.get(row.id) ?? [],
+      trackRows.length,
+      trackRows.length ? seconds : null,
+    ),
     genre: row.genre,
     language: row.language,
     pLine: row.pLine,
@@ -119,9 +126,15 @@ export async function getRelease(
   };
 }
 
-async function loadTracks(db: Database, releaseIds: string[]): Promise<(Track & { releaseId: string })[]> {
+async function loadTracks(
+  db: Database,
+  releaseIds: string[],
+): Promise<(Track & { releaseId: string })[]> {
   const latest = db
-    .select({ recordingId: audioFiles.recordingId, fileVersion: max(audioFiles.fileVersion).as('v') })
+    .select({
+      recordingId: audioFiles.recordingId,
+      fileVersion: max(audioFiles.fileVersion).as('v'),
+    })
     .from(audioFiles)
     .groupBy(audioFiles.recordingId)
     .as('latest');
@@ -132,7 +145,10 @@ async function loadTracks(db: Database, releaseIds: string[]): Promise<(Track & 
     .leftJoin(latest, eq(latest.recordingId, tracks.recordingId))
     .leftJoin(
       audioFiles,
-      and(eq(audioFiles.recordingId, latest.recordingId), eq(audioFiles.fileVersion, latest.fileVersion)),
+      and(
+        eq(audioFiles.recordingId, latest.recordingId),
+        eq(audioFiles.fileVersion, latest.fileVersion),
+      ),
     )
     .where(inArray(tracks.releaseId, releaseIds))
     .orderBy(asc(tracks.releaseId), asc(tracks.position));

@@ -69,12 +69,19 @@ async function respond(run: () => Promise<Response> | Response): Promise<Respons
   } catch (error) {
     if (error instanceof ApiError) return error.toResponse();
     console.error('[api] unexpected error', error);
-    return new ApiError('internal', 'Something went wrong on our side; nothing was changed.').toResponse();
+    return new ApiError(
+      'internal',
+      'Something went wrong on our side; nothing was changed.',
+    ).toResponse();
   }
 }
 
 /** Parses `value` with `schema` or throws a 400 listing each problem. */
-export function parseOrThrow<T extends z.ZodType>(schema: T, value: unknown, what: string): z.infer<T> {
+export function parseOrThrow<T extends z.ZodType>(
+  schema: T,
+  value: unknown,
+  what: string,
+): z.infer<T> {
   const parsed = schema.safeParse(value);
   if (!parsed.success) {
     throw new ApiError(

@@ -69,7 +69,10 @@ export async function getObjectStream(
 }
 
 /** True when an object exists under `key`. */
-export async function objectExists(s3: { client: S3Client; bucket: string }, key: string): Promise<boolean> {
+export async function objectExists(
+  s3: { client: S3Client; bucket: string },
+  key: string,
+): Promise<boolean> {
   try {
     await s3.client.send(new HeadObjectCommand({ Bucket: s3.bucket, Key: key }));
     return true;

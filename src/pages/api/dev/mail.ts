@@ -20,7 +20,8 @@ export const sentMailSchema = z.object({
 // the link. With a real SMTP server this route answers 404.
 export const GET = definePublicRoute(async () => {
   const base = process.env.MAIL_FAKE_URL;
-  if (!base) throw new ApiError('not_found', 'The sent-mail view exists only with the local mail fake.');
+  if (!base)
+    throw new ApiError('not_found', 'The sent-mail view exists only with the local mail fake.');
   const answer = await fetch(new URL('/messages', base)).catch(() => null);
   if (!answer?.ok) throw new ApiError('internal', 'The local mail fake did not answer.');
   const parsed = sentMailSchema.parse(await answer.json());

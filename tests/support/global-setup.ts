@@ -1,0 +1,75 @@
+/**
+ * Starts the real thing once for the integration and browser tests: a fresh temporary data
+ * folder (SQLite file, S3 fake, mail fake), migrations, the demo seed and the built server
+ * on a free port. Tests reach it over HTTP and read the same database file.
+ */
+import { mkdtempSync, rmSync } from 'node:fs';
+import { createServer } from 'node:net';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import type { TestProject } from 'vitest/node';
+import {
+  buildApp,
+  migrateDatabase,
+  needsBuild,
+  prepareEnvironment,
+  seedDemoData,
+  startAppServer,
+} from '../../scripts/lib/runtime';
+
+declare module 'vitest' {
+  export interface ProvidedContext {
+    baseUrl: string;
+    databaseUrl: string;
+    mailUrl: string;
+    s3: { endpoint: string; bucket: string };
+    dataDir: string;
+  }
+}
+
+function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const probe = createServer();
+    probe.once('error', reject);
+    probe.listen(0, '127.0.0.1', () => {
+      const address = probe.address();
+      const port = typeof address === 'object' && address ? address.port : 0;
+      probe.close(() => resolve(port));
+    });
+  });
+}
+
+export default async function setup(project: TestProject) {
+  const dataDir = mkdtempSync(join(tmpdir(), 'quayside-test-'));
+  for (const key of [
+    'DATABASE_URL',
+    'S3_ENDPOINT',
+    'SMTP_URL',
+    'BETTER_AUTH_URL',
+    'BETTER_AUTH_SECRET',
+  ]) {
+    delete process.env[key];
+  }
+  const port = await freePort();
+  const fakes = await prepareEnvironment({ dataDir, port });
+  await migrateDatabase();
+  await seedDemoData();
+  if (await needsBuild()) await buildApp();
+  const { server, url } = await startAppServer({ port, host: '127.0.0.1' });
+
+  project.provide('baseUrl', url);
+  project.provide('databaseUrl', process.env.DATABASE_URL ?? '');
+  project.provide('mailUrl', process.env.MAIL_FAKE_URL ?? '');
+  project.provide('s3', {
+    endpoint: process.env.S3_ENDPOINT ?? '',
+    bucket: process.env.S3_BUCKET ?? '',
+  });
+  project.provide('dataDir', dataDir);
+
+  return async () => {
+    server.closeAllConnections();
+    await new Promise<void>((resolve) => server.close(() => resolve()));
+    await fakes.close();
+    if (!process.env.KEEP_TEST_DATA) rmSync(dataDir, { recursive: true, force: true });
+  };
+}
