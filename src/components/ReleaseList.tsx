@@ -1,5 +1,5 @@
 import { useQuery } from '@tanstack/react-query';
-import { formatDate, formatDuration, formatProfileId } from '@/lib/api/format';
+import { formatDate, formatDuration } from '@/lib/api/format';
 import { releaseListSchema } from '@/lib/api/schemas';
 import { getJson } from './api-client';
 import { QueryProvider } from './QueryProvider';
@@ -93,13 +93,13 @@ function ReleaseTable() {
                 <ReleaseStateBadge state={r.state} />
               </td>
               <td className="px-4 py-3">
-                {r.profileIds.length === 0 ? (
+                {r.profiles.length === 0 ? (
                   <span className="text-slate">None chosen</span>
                 ) : (
                   <ul className="flex flex-wrap gap-1">
-                    {r.profileIds.map((p) => (
-                      <li key={p} className="rounded bg-mist px-2 py-0.5 text-xs">
-                        {formatProfileId(p)}
+                    {r.profiles.map((p) => (
+                      <li key={p.id} className="rounded bg-mist px-2 py-0.5 text-xs">
+                        {p.name}
                       </li>
                     ))}
                   </ul>

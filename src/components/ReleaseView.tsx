@@ -4,7 +4,6 @@ import {
   formatDuration,
   formatFramesAsSeconds,
   formatIsrcForDisplay,
-  formatProfileId,
 } from '@/lib/api/format';
 import { type ReleaseDetail, releaseDetailSchema } from '@/lib/api/schemas';
 import { ApiRequestError, getJson } from './api-client';
@@ -112,7 +111,7 @@ function ReleaseBody({ releaseId }: { releaseId: string }) {
         <Fact label="© line" value={r.cLine ?? '–'} />
         <Fact
           label="Target profiles"
-          value={r.profileIds.map(formatProfileId).join(', ') || 'None chosen'}
+          value={r.profiles.map((p) => p.name).join(' · ') || 'None chosen'}
         />
         <Fact label="Running time" value={formatDuration(r.totalDurationSeconds)} mono />
       </dl>

@@ -22,14 +22,6 @@ export function formatIsrcForDisplay(isrc: string | null): string {
   return `${isrc.slice(0, 2)}-${isrc.slice(2, 5)}-${isrc.slice(5, 7)}-${isrc.slice(7)}`;
 }
 
-/** A profile id such as "cd-master" shown until the profile catalogue supplies names. */
-export function formatProfileId(id: string): string {
-  return id
-    .split('-')
-    .map((w) => (w === 'cd' ? 'CD' : w.charAt(0).toUpperCase() + w.slice(1)))
-    .join(' ');
-}
-
 export function formatDate(iso: string | null): string {
   if (!iso) return '–';
   const d = new Date(iso);

@@ -32,7 +32,8 @@ export const releaseSummarySchema = z.object({
   upcEan: z.string().nullable(),
   releaseDate: z.string().nullable(),
   state: releaseStateSchema,
-  profileIds: z.array(z.string()),
+  /** Target delivery profiles with their display names. */
+  profiles: z.array(z.object({ id: z.string(), name: z.string() })),
   trackCount: z.number().int().nonnegative(),
   totalDurationSeconds: z.number().nonnegative().nullable(),
   updatedAt: z.string(),

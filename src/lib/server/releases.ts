@@ -1,6 +1,7 @@
 import { and, asc, desc, eq, inArray, max, sql } from 'drizzle-orm';
 import type { ReleaseDetail, ReleaseSummary, Track } from '../api/schemas';
 import { seesOnlySharedReleases } from '../auth/permissions';
+import { findBuiltInProfile } from '../specs/profiles';
 import type { Database } from '../db/client';
 import {
   audioFiles,
@@ -42,6 +43,11 @@ async function loadProfiles(db: Database, releaseIds: string[]) {
   return byRelease;
 }
 
+/** A profile's display name; ids that no longer resolve are shown as they are. */
+function profileName(id: string): string {
+  return findBuiltInProfile(id)?.name ?? id;
+}
+
 function toSummary(
   row: ReleaseRow,
   profileIds: string[],
@@ -57,7 +63,7 @@ function toSummary(
     upcEan: row.upcEan,
     releaseDate: row.releaseDate,
     state: row.state,
-    profileIds,
+    profiles: profileIds.map((id) => ({ id, name: profileName(id) })),
     trackCount,
     totalDurationSeconds,
     updatedAt: row.updatedAt.toISOString(),
