@@ -16,6 +16,23 @@ CREATE TABLE `account` (
 );
 --> statement-breakpoint
 CREATE INDEX `account_user_idx` ON `account` (`user_id`);--> statement-breakpoint
+CREATE TABLE `artworks` (
+	`id` text PRIMARY KEY NOT NULL,
+	`release_id` text NOT NULL,
+	`object_key` text NOT NULL,
+	`original_name` text NOT NULL,
+	`format` text NOT NULL,
+	`width_px` integer NOT NULL,
+	`height_px` integer NOT NULL,
+	`size_bytes` integer NOT NULL,
+	`sha256` text NOT NULL,
+	`uploaded_by` text,
+	`created_at` integer DEFAULT (cast(unixepoch('subsecond') * 1000 as integer)) NOT NULL,
+	FOREIGN KEY (`release_id`) REFERENCES `releases`(`id`) ON UPDATE no action ON DELETE cascade,
+	FOREIGN KEY (`uploaded_by`) REFERENCES `user`(`id`) ON UPDATE no action ON DELETE set null
+);
+--> statement-breakpoint
+CREATE INDEX `artworks_release_idx` ON `artworks` (`release_id`,`created_at`);--> statement-breakpoint
 CREATE TABLE `audio_files` (
 	`id` text PRIMARY KEY NOT NULL,
 	`recording_id` text NOT NULL,
@@ -51,6 +68,19 @@ CREATE TABLE `audit_events` (
 );
 --> statement-breakpoint
 CREATE INDEX `audit_events_release_idx` ON `audit_events` (`release_id`,`created_at`);--> statement-breakpoint
+CREATE TABLE `check_runs` (
+	`id` text PRIMARY KEY NOT NULL,
+	`release_id` text NOT NULL,
+	`release_version` integer NOT NULL,
+	`findings` text NOT NULL,
+	`summary` text NOT NULL,
+	`ran_by` text,
+	`created_at` integer DEFAULT (cast(unixepoch('subsecond') * 1000 as integer)) NOT NULL,
+	FOREIGN KEY (`release_id`) REFERENCES `releases`(`id`) ON UPDATE no action ON DELETE cascade,
+	FOREIGN KEY (`ran_by`) REFERENCES `user`(`id`) ON UPDATE no action ON DELETE set null
+);
+--> statement-breakpoint
+CREATE INDEX `check_runs_release_idx` ON `check_runs` (`release_id`,`created_at`);--> statement-breakpoint
 CREATE TABLE `invitation` (
 	`id` text PRIMARY KEY NOT NULL,
 	`organization_id` text NOT NULL,
@@ -65,6 +95,27 @@ CREATE TABLE `invitation` (
 );
 --> statement-breakpoint
 CREATE INDEX `invitation_org_idx` ON `invitation` (`organization_id`);--> statement-breakpoint
+CREATE TABLE `isrc_allocations` (
+	`isrc` text PRIMARY KEY NOT NULL,
+	`organization_id` text NOT NULL,
+	`recording_id` text,
+	`allocated_by` text,
+	`created_at` integer DEFAULT (cast(unixepoch('subsecond') * 1000 as integer)) NOT NULL,
+	FOREIGN KEY (`organization_id`) REFERENCES `organization`(`id`) ON UPDATE no action ON DELETE cascade,
+	FOREIGN KEY (`recording_id`) REFERENCES `recordings`(`id`) ON UPDATE no action ON DELETE set null,
+	FOREIGN KEY (`allocated_by`) REFERENCES `user`(`id`) ON UPDATE no action ON DELETE set null
+);
+--> statement-breakpoint
+CREATE INDEX `isrc_allocations_org_idx` ON `isrc_allocations` (`organization_id`);--> statement-breakpoint
+CREATE TABLE `isrc_registrants` (
+	`organization_id` text PRIMARY KEY NOT NULL,
+	`prefix` text NOT NULL,
+	`range_start` integer DEFAULT 0 NOT NULL,
+	`range_end` integer DEFAULT 99999 NOT NULL,
+	`updated_at` integer DEFAULT (cast(unixepoch('subsecond') * 1000 as integer)) NOT NULL,
+	FOREIGN KEY (`organization_id`) REFERENCES `organization`(`id`) ON UPDATE no action ON DELETE cascade
+);
+--> statement-breakpoint
 CREATE TABLE `member` (
 	`id` text PRIMARY KEY NOT NULL,
 	`organization_id` text NOT NULL,
@@ -86,6 +137,22 @@ CREATE TABLE `organization` (
 );
 --> statement-breakpoint
 CREATE UNIQUE INDEX `organization_slug_unique` ON `organization` (`slug`);--> statement-breakpoint
+CREATE TABLE `profiles` (
+	`id` text PRIMARY KEY NOT NULL,
+	`organization_id` text NOT NULL,
+	`name` text NOT NULL,
+	`description` text DEFAULT '' NOT NULL,
+	`based_on` text,
+	`rules` text NOT NULL,
+	`version` integer DEFAULT 1 NOT NULL,
+	`created_by` text,
+	`created_at` integer DEFAULT (cast(unixepoch('subsecond') * 1000 as integer)) NOT NULL,
+	`updated_at` integer DEFAULT (cast(unixepoch('subsecond') * 1000 as integer)) NOT NULL,
+	FOREIGN KEY (`organization_id`) REFERENCES `organization`(`id`) ON UPDATE no action ON DELETE cascade,
+	FOREIGN KEY (`created_by`) REFERENCES `user`(`id`) ON UPDATE no action ON DELETE set null
+);
+--> statement-breakpoint
+CREATE UNIQUE INDEX `profiles_org_name_idx` ON `profiles` (`organization_id`,`name`);--> statement-breakpoint
 CREATE TABLE `recordings` (
 	`id` text PRIMARY KEY NOT NULL,
 	`organization_id` text NOT NULL,
@@ -163,7 +230,8 @@ CREATE TABLE `tracks` (
 	`release_id` text NOT NULL,
 	`recording_id` text NOT NULL,
 	`position` integer NOT NULL,
-	`disc_or_side` text DEFAULT '1' NOT NULL,
+	`disc` integer DEFAULT 1 NOT NULL,
+	`side` text,
 	`gap_before_frames` integer DEFAULT 0 NOT NULL,
 	`created_at` integer DEFAULT (cast(unixepoch('subsecond') * 1000 as integer)) NOT NULL,
 	`updated_at` integer DEFAULT (cast(unixepoch('subsecond') * 1000 as integer)) NOT NULL,

@@ -278,7 +278,7 @@ async function createScenario(db: Database, auth: Auth): Promise<void> {
           credits: [
             { name: t.composer, role: 'composer' },
             { name: r.artist, role: 'producer' },
-            { name: 'Eli Stroud', role: 'mastering engineer' },
+            { name: 'Eli Stroud', role: 'mastering-engineer' },
           ],
         });
         await tx.insert(tracks).values({
@@ -286,11 +286,8 @@ async function createScenario(db: Database, auth: Auth): Promise<void> {
           releaseId: r.id,
           recordingId,
           position: position + 1,
-          discOrSide: r.profiles.some((p) => p.startsWith('vinyl'))
-            ? position < 2
-              ? 'A'
-              : 'B'
-            : '1',
+          disc: 1,
+          side: r.profiles.some((p) => p.startsWith('vinyl')) ? (position < 2 ? 'A' : 'B') : null,
           gapBeforeFrames: t.gapBeforeFrames,
         });
         const wav = synthesizeWav({ ...t.audio, seed: seed++ });

@@ -160,7 +160,9 @@ function ReleaseBody({ releaseId }: { releaseId: string }) {
                     data-testid="track-row"
                   >
                     <td className="figures px-3 py-2 text-right">{t.position}</td>
-                    <td className="figures px-3 py-2">{t.discOrSide}</td>
+                    <td className="figures px-3 py-2">
+                      {t.side ? `Side ${t.side}` : `Disc ${t.disc}`}
+                    </td>
                     <td className="px-3 py-2">
                       <div className="font-medium">
                         {t.title}

@@ -49,7 +49,8 @@ export const creditSchema = z.object({ name: z.string(), role: z.string() });
 export const trackSchema = z.object({
   id: z.string(),
   position: z.number().int().positive(),
-  discOrSide: z.string(),
+  disc: z.number().int().positive(),
+  side: z.string().nullable(),
   gapBeforeFrames: z.number().int().nonnegative(),
   recordingId: z.string(),
   title: z.string(),

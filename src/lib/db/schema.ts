@@ -188,9 +188,9 @@ export const recordings = sqliteTable(
     artist: text('artist').notNull(),
     iswc: text('iswc'),
     explicit: integer('explicit', { mode: 'boolean' }).notNull().default(false),
-    /** Credits as JSON: [{ name, role }]. */
+    /** Credits as JSON: [{ name, role, isni? }]. */
     credits: text('credits', { mode: 'json' })
-      .$type<{ name: string; role: string }[]>()
+      .$type<{ name: string; role: string; isni?: string | null }[]>()
       .notNull()
       .default(sql`'[]'`),
     version: integer('version').notNull().default(1),
@@ -214,9 +214,12 @@ export const tracks = sqliteTable(
     recordingId: text('recording_id')
       .notNull()
       .references(() => recordings.id, { onDelete: 'restrict' }),
+    /** 1-based order within the release. */
     position: integer('position').notNull(),
-    /** Disc number (1-based) or vinyl side letter ("A", "B", …). */
-    discOrSide: text('disc_or_side').notNull().default('1'),
+    /** 1-based disc number (CD sets, multi-disc vinyl). */
+    disc: integer('disc').notNull().default(1),
+    /** Vinyl side letter ("A", "B", …); null for digital and CD. */
+    side: text('side'),
     /** Silence before the track, in CD frames (1/75 s). */
     gapBeforeFrames: integer('gap_before_frames').notNull().default(0),
     createdAt: createdAt(),
@@ -282,4 +285,94 @@ export const auditEvents = sqliteTable(
     createdAt: createdAt(),
   },
   (t) => [index('audit_events_release_idx').on(t.releaseId, t.createdAt)],
+);
+
+/** A label's own delivery profile (built-in profiles live in code, src/lib/specs). */
+export const profiles = sqliteTable(
+  'profiles',
+  {
+    id: text('id').primaryKey(),
+    organizationId: text('organization_id')
+      .notNull()
+      .references(() => organization.id, { onDelete: 'cascade' }),
+    name: text('name').notNull(),
+    description: text('description').notNull().default(''),
+    /** The built-in profile this one was copied from, if any. */
+    basedOn: text('based_on'),
+    /** DeliveryRules JSON, validated with deliveryRulesSchema on every read and write. */
+    rules: text('rules', { mode: 'json' }).notNull(),
+    version: integer('version').notNull().default(1),
+    createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+    updatedAt: updatedAt(),
+  },
+  (t) => [uniqueIndex('profiles_org_name_idx').on(t.organizationId, t.name)],
+);
+
+/** The result of one run of the checks over a release, kept for the record and the package. */
+export const checkRuns = sqliteTable(
+  'check_runs',
+  {
+    id: text('id').primaryKey(),
+    releaseId: text('release_id')
+      .notNull()
+      .references(() => releases.id, { onDelete: 'cascade' }),
+    /** The release version the checks saw. */
+    releaseVersion: integer('release_version').notNull(),
+    /** Finding[] JSON (src/lib/specs/types.ts). */
+    findings: text('findings', { mode: 'json' }).notNull(),
+    /** { failures, warnings, passes } counts. */
+    summary: text('summary', { mode: 'json' }).notNull(),
+    ranBy: text('ran_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+  },
+  (t) => [index('check_runs_release_idx').on(t.releaseId, t.createdAt)],
+);
+
+/** A label's ISRC registrant code (prefix), and optionally the designation range it may use. */
+export const isrcRegistrants = sqliteTable('isrc_registrants', {
+  organizationId: text('organization_id')
+    .primaryKey()
+    .references(() => organization.id, { onDelete: 'cascade' }),
+  /** Country/agency code + registrant code, 5 characters, e.g. "XQBRK". */
+  prefix: text('prefix').notNull(),
+  rangeStart: integer('range_start').notNull().default(0),
+  rangeEnd: integer('range_end').notNull().default(99_999),
+  updatedAt: updatedAt(),
+});
+
+/** Every ISRC ever handed out by Quayside: never deleted, never reused. */
+export const isrcAllocations = sqliteTable(
+  'isrc_allocations',
+  {
+    isrc: text('isrc').primaryKey(),
+    organizationId: text('organization_id')
+      .notNull()
+      .references(() => organization.id, { onDelete: 'cascade' }),
+    recordingId: text('recording_id').references(() => recordings.id, { onDelete: 'set null' }),
+    allocatedBy: text('allocated_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+  },
+  (t) => [index('isrc_allocations_org_idx').on(t.organizationId)],
+);
+
+/** Cover art of a release (the newest row is current). */
+export const artworks = sqliteTable(
+  'artworks',
+  {
+    id: text('id').primaryKey(),
+    releaseId: text('release_id')
+      .notNull()
+      .references(() => releases.id, { onDelete: 'cascade' }),
+    objectKey: text('object_key').notNull(),
+    originalName: text('original_name').notNull(),
+    format: text('format').notNull(),
+    widthPx: integer('width_px').notNull(),
+    heightPx: integer('height_px').notNull(),
+    sizeBytes: integer('size_bytes').notNull(),
+    sha256: text('sha256').notNull(),
+    uploadedBy: text('uploaded_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+  },
+  (t) => [index('artworks_release_idx').on(t.releaseId, t.createdAt)],
 );

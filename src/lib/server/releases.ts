@@ -1,7 +1,6 @@
 import { and, asc, desc, eq, inArray, max, sql } from 'drizzle-orm';
 import type { ReleaseDetail, ReleaseSummary, Track } from '../api/schemas';
 import { seesOnlySharedReleases } from '../auth/permissions';
-import { findBuiltInProfile } from '../specs/profiles';
 import type { Database } from '../db/client';
 import {
   audioFiles,
@@ -11,6 +10,7 @@ import {
   releases,
   tracks,
 } from '../db/schema';
+import { findBuiltInProfile } from '../specs/profiles';
 import type { Actor } from './route';
 
 /** Condition limiting releases to what `actor` may see: their organisation, and for
@@ -162,7 +162,8 @@ async function loadTracks(
     releaseId: track.releaseId,
     id: track.id,
     position: track.position,
-    discOrSide: track.discOrSide,
+    disc: track.disc,
+    side: track.side,
     gapBeforeFrames: track.gapBeforeFrames,
     recordingId: recording.id,
     title: recording.title,
