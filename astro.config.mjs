@@ -13,6 +13,8 @@ const trustedHosts = ['localhost', '127.0.0.1', ...(process.env.QUAYSIDE_HOSTS ?
 
 export default defineConfig({
   output: 'server',
+  // A separate build folder lets two checkouts' test runs build side by side.
+  outDir: process.env.QUAYSIDE_BUILD_DIR ?? './dist',
   adapter: node({ mode: 'standalone' }),
   integrations: [react()],
   security: { checkOrigin: true, allowedDomains: trustedHosts.map((hostname) => ({ hostname })) },

@@ -9,13 +9,16 @@ import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from 'no
 import { readdir, stat } from 'node:fs/promises';
 import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
-import { join } from 'node:path';
+import { join, resolve } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { migrate } from 'drizzle-orm/libsql/migrator';
 import { type MailFake, startMailFake } from '../../fakes/mail/index';
 import { type S3Fake, startS3Fake } from '../../fakes/s3/index';
 
 export const projectRoot = fileURLToPath(new URL('../../', import.meta.url));
+
+/** Where `astro build` writes (QUAYSIDE_BUILD_DIR, as in astro.config.mjs). */
+export const buildDir = resolve(projectRoot, process.env.QUAYSIDE_BUILD_DIR ?? 'dist');
 
 export interface Fakes {
   s3?: S3Fake;
@@ -114,7 +117,7 @@ async function newestMtime(dir: string): Promise<number> {
 
 /** True when dist/ is missing or older than any source the build reads. */
 export async function needsBuild(): Promise<boolean> {
-  const entry = join(projectRoot, 'dist/server/entry.mjs');
+  const entry = join(buildDir, 'server/entry.mjs');
   if (!existsSync(entry)) return true;
   const built = statSync(entry).mtimeMs;
   const inputs = ['src', 'public', 'astro.config.mjs', 'package-lock.json'];
@@ -155,7 +158,7 @@ export async function startAppServer(options: { port: number; host: string }): P
   url: string;
 }> {
   process.env.ASTRO_NODE_AUTOSTART = 'disabled';
-  const entry = pathToFileURL(join(projectRoot, 'dist/server/entry.mjs')).href;
+  const entry = pathToFileURL(join(buildDir, 'server/entry.mjs')).href;
   const { handler } = (await import(entry)) as {
     handler: (req: unknown, res: unknown) => void;
   };
