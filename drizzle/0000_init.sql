@@ -46,6 +46,9 @@ CREATE TABLE `audio_files` (
 	`channels` integer,
 	`duration_samples` integer,
 	`measurements` text,
+	`analysis_state` text DEFAULT 'pending' NOT NULL,
+	`analysis_error` text,
+	`analyzed_at` integer,
 	`uploaded_by` text,
 	`created_at` integer DEFAULT (cast(unixepoch('subsecond') * 1000 as integer)) NOT NULL,
 	FOREIGN KEY (`recording_id`) REFERENCES `recordings`(`id`) ON UPDATE no action ON DELETE cascade,
@@ -240,6 +243,29 @@ CREATE TABLE `tracks` (
 );
 --> statement-breakpoint
 CREATE INDEX `tracks_release_idx` ON `tracks` (`release_id`,`position`);--> statement-breakpoint
+CREATE TABLE `uploads` (
+	`id` text PRIMARY KEY NOT NULL,
+	`organization_id` text NOT NULL,
+	`release_id` text NOT NULL,
+	`track_id` text,
+	`audio_file_id` text,
+	`object_key` text NOT NULL,
+	`original_name` text NOT NULL,
+	`size_bytes` integer,
+	`bytes_received` integer DEFAULT 0 NOT NULL,
+	`state` text DEFAULT 'receiving' NOT NULL,
+	`error` text,
+	`created_by` text,
+	`created_at` integer DEFAULT (cast(unixepoch('subsecond') * 1000 as integer)) NOT NULL,
+	`updated_at` integer DEFAULT (cast(unixepoch('subsecond') * 1000 as integer)) NOT NULL,
+	FOREIGN KEY (`organization_id`) REFERENCES `organization`(`id`) ON UPDATE no action ON DELETE cascade,
+	FOREIGN KEY (`release_id`) REFERENCES `releases`(`id`) ON UPDATE no action ON DELETE cascade,
+	FOREIGN KEY (`track_id`) REFERENCES `tracks`(`id`) ON UPDATE no action ON DELETE set null,
+	FOREIGN KEY (`audio_file_id`) REFERENCES `audio_files`(`id`) ON UPDATE no action ON DELETE set null,
+	FOREIGN KEY (`created_by`) REFERENCES `user`(`id`) ON UPDATE no action ON DELETE set null
+);
+--> statement-breakpoint
+CREATE INDEX `uploads_release_idx` ON `uploads` (`release_id`,`created_at`);--> statement-breakpoint
 CREATE TABLE `user` (
 	`id` text PRIMARY KEY NOT NULL,
 	`name` text NOT NULL,

@@ -247,6 +247,13 @@ export const audioFiles = sqliteTable(
     durationSamples: integer('duration_samples'),
     /** AudioMeasurements JSON (src/lib/audio/types.ts), null until analysed. */
     measurements: text('measurements', { mode: 'json' }),
+    /** 'pending' | 'running' | 'done' | 'failed'. */
+    analysisState: text('analysis_state', { enum: ['pending', 'running', 'done', 'failed'] })
+      .notNull()
+      .default('pending'),
+    /** Plain-English reason when analysis failed (the file is kept). */
+    analysisError: text('analysis_error'),
+    analyzedAt: integer('analyzed_at', { mode: 'timestamp_ms' }),
     uploadedBy: text('uploaded_by').references(() => user.id, { onDelete: 'set null' }),
     createdAt: createdAt(),
   },
@@ -375,4 +382,35 @@ export const artworks = sqliteTable(
     createdAt: createdAt(),
   },
   (t) => [index('artworks_release_idx').on(t.releaseId, t.createdAt)],
+);
+
+/** An upload in progress or finished: bytes are streamed to object storage, then analysed. */
+export const uploads = sqliteTable(
+  'uploads',
+  {
+    id: text('id').primaryKey(),
+    organizationId: text('organization_id')
+      .notNull()
+      .references(() => organization.id, { onDelete: 'cascade' }),
+    releaseId: text('release_id')
+      .notNull()
+      .references(() => releases.id, { onDelete: 'cascade' }),
+    /** The track whose master this replaces; null when the upload adds a new track. */
+    trackId: text('track_id').references(() => tracks.id, { onDelete: 'set null' }),
+    /** The audio file row created when the upload completed. */
+    audioFileId: text('audio_file_id').references(() => audioFiles.id, { onDelete: 'set null' }),
+    objectKey: text('object_key').notNull(),
+    originalName: text('original_name').notNull(),
+    sizeBytes: integer('size_bytes'),
+    bytesReceived: integer('bytes_received').notNull().default(0),
+    /** 'receiving' | 'stored' | 'failed' | 'cancelled'. */
+    state: text('state', { enum: ['receiving', 'stored', 'failed', 'cancelled'] })
+      .notNull()
+      .default('receiving'),
+    error: text('error'),
+    createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+    updatedAt: updatedAt(),
+  },
+  (t) => [index('uploads_release_idx').on(t.releaseId, t.createdAt)],
 );
