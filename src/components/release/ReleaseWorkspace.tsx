@@ -1,13 +1,14 @@
 import { useQuery } from '@tanstack/react-query';
 import type { ReactNode } from 'react';
 import { releaseDetailSchema } from '@/lib/api/schemas';
-import type { Role } from '@/lib/auth/permissions';
+import { can, type Role } from '@/lib/auth/permissions';
 import { ApiRequestError, getJson } from '../api-client';
 import { ChecksPanel } from '../checks/ChecksPanel';
 import { ReleaseFactsPanel } from '../metadata/ReleaseFactsPanel';
 import { TracksPanel } from '../metadata/TracksPanel';
 import { QueryProvider } from '../QueryProvider';
 import { ReleaseStateBadge } from '../ReleaseStateBadge';
+import { UploadPanel } from '../upload/UploadPanel';
 import { RunningOrder } from './RunningOrder';
 import { releaseQueryKey } from './workspace-types';
 
@@ -71,6 +72,11 @@ function Workspace({ releaseId, role }: { releaseId: string; role: Role }) {
       <Section id="tracks" title="Tracks">
         <TracksPanel {...panel} />
       </Section>
+      {can(role, 'audio:upload') && (
+        <Section id="upload" title="Upload masters">
+          <UploadPanel {...panel} />
+        </Section>
+      )}
       {role !== 'distributor' && (
         <Section id="checks" title="Checks">
           <ChecksPanel {...panel} />
