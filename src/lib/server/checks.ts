@@ -1,0 +1,285 @@
+import { createHash, randomUUID } from 'node:crypto';
+import { and, asc, desc, eq, inArray, isNotNull, max, notInArray } from 'drizzle-orm';
+import type { AudioMeasurements } from '../audio/types';
+import type { Database } from '../db/client';
+import {
+  artworks,
+  audioFiles,
+  checkRuns,
+  recordings,
+  releaseProfiles,
+  releases,
+  tracks,
+  user,
+} from '../db/schema';
+import {
+  checkReleaseAgainstProfiles,
+  summarizeVerdicts,
+  type Verdict,
+} from '../specs/check-release';
+import type { DeliveryProfile } from '../specs/schema';
+import type { Finding, MeasurementsByTrack, ReleaseForCheck } from '../specs/types';
+import { recordAudit } from './audit';
+import { ApiError } from './errors';
+import { resolveProfiles } from './profiles';
+import type { Actor } from './route';
+
+export interface CheckInputs {
+  release: ReleaseForCheck;
+  measurements: MeasurementsByTrack;
+  profiles: DeliveryProfile[];
+  /** Hash of everything the checks read: a stored run whose fingerprint differs is stale. */
+  fingerprint: string;
+  releaseVersion: number;
+  trackTitles: { id: string; position: number; title: string; hasAudio: boolean }[];
+}
+
+/** Gathers the release, its tracks' latest analysed audio and its target profiles. */
+export async function loadCheckInputs(
+  db: Database,
+  organizationId: string,
+  releaseId: string,
+): Promise<CheckInputs> {
+  const [release] = await db
+    .select()
+    .from(releases)
+    .where(and(eq(releases.id, releaseId), eq(releases.organizationId, organizationId)))
+    .limit(1);
+  if (!release) throw new ApiError('not_found', 'No release with that id is visible to you.');
+
+  const trackRows = await db
+    .select({ track: tracks, recording: recordings })
+    .from(tracks)
+    .innerJoin(recordings, eq(recordings.id, tracks.recordingId))
+    .where(eq(tracks.releaseId, releaseId))
+    .orderBy(asc(tracks.position));
+  const recordingIds = trackRows.map((r) => r.recording.id);
+
+  const latest = recordingIds.length
+    ? await db
+        .select({ recordingId: audioFiles.recordingId, fileVersion: max(audioFiles.fileVersion) })
+        .from(audioFiles)
+        .where(inArray(audioFiles.recordingId, recordingIds))
+        .groupBy(audioFiles.recordingId)
+    : [];
+  const files = new Map<string, typeof audioFiles.$inferSelect>();
+  for (const l of latest) {
+    if (l.fileVersion == null) continue;
+    const [file] = await db
+      .select()
+      .from(audioFiles)
+      .where(
+        and(eq(audioFiles.recordingId, l.recordingId), eq(audioFiles.fileVersion, l.fileVersion)),
+      )
+      .limit(1);
+    if (file) files.set(l.recordingId, file);
+  }
+
+  const elsewhere = await db
+    .select({ id: recordings.id, isrc: recordings.isrc })
+    .from(recordings)
+    .where(
+      and(
+        eq(recordings.organizationId, organizationId),
+        isNotNull(recordings.isrc),
+        recordingIds.length ? notInArray(recordings.id, recordingIds) : undefined,
+      ),
+    );
+  const labelIsrcRecordings: Record<string, string[]> = {};
+  for (const r of elsewhere) {
+    if (r.isrc) labelIsrcRecordings[r.isrc] = [...(labelIsrcRecordings[r.isrc] ?? []), r.id];
+  }
+
+  const [art] = await db
+    .select()
+    .from(artworks)
+    .where(eq(artworks.releaseId, releaseId))
+    .orderBy(desc(artworks.createdAt))
+    .limit(1);
+
+  const profileRows = await db
+    .select({ id: releaseProfiles.profileId })
+    .from(releaseProfiles)
+    .where(eq(releaseProfiles.releaseId, releaseId))
+    .orderBy(asc(releaseProfiles.profileId));
+  const profiles = await resolveProfiles(
+    db,
+    organizationId,
+    profileRows.map((p) => p.id),
+  );
+
+  const forCheck: ReleaseForCheck = {
+    id: release.id,
+    title: release.title,
+    barcode: release.upcEan,
+    tracks: trackRows.map(({ track, recording }) => ({
+      id: track.id,
+      recordingId: recording.id,
+      position: track.position,
+      disc: track.disc,
+      side: track.side,
+      title: recording.title,
+      isrc: recording.isrc,
+      credits: recording.credits,
+      gapBeforeSeconds: track.gapBeforeFrames / 75,
+      explicit: recording.explicit,
+    })),
+    artwork: art ? { widthPx: art.widthPx, heightPx: art.heightPx, format: art.format } : null,
+    labelIsrcRecordings,
+  };
+  const measurements: Record<string, AudioMeasurements | null> = {};
+  const audioIdentity: string[] = [];
+  for (const { track, recording } of trackRows) {
+    const file = files.get(recording.id);
+    const analysed =
+      file?.analysisState === 'done' ? (file.measurements as AudioMeasurements) : null;
+    measurements[track.id] = analysed;
+    audioIdentity.push(file ? `${file.id}:${file.analysisState}` : '-');
+  }
+  const fingerprint = createHash('sha256')
+    .update(
+      JSON.stringify({
+        forCheck,
+        audioIdentity,
+        profiles: profiles.map((p) => [p.id, p.version, p.rules]),
+      }),
+    )
+    .digest('hex');
+  return {
+    release: forCheck,
+    measurements,
+    profiles,
+    fingerprint,
+    releaseVersion: release.version,
+    trackTitles: trackRows.map(({ track, recording }) => ({
+      id: track.id,
+      position: track.position,
+      title: recording.title,
+      hasAudio: files.has(recording.id),
+    })),
+  };
+}
+
+export interface CheckSummary {
+  failures: number;
+  warnings: number;
+  passes: number;
+  fingerprint: string;
+}
+
+export interface CheckReport {
+  run: { id: string; createdAt: string; releaseVersion: number; ranBy: string | null } | null;
+  stale: boolean;
+  profiles: { id: string; name: string }[];
+  tracks: { id: string; position: number; title: string; hasAudio: boolean }[];
+  findings: Finding[];
+  verdicts: Verdict[];
+  summary: Omit<CheckSummary, 'fingerprint'>;
+}
+
+function summarize(findings: readonly Finding[], fingerprint: string): CheckSummary {
+  return {
+    failures: findings.filter((f) => f.severity === 'failure').length,
+    warnings: findings.filter((f) => f.severity === 'warning').length,
+    passes: findings.filter((f) => f.severity === 'pass').length,
+    fingerprint,
+  };
+}
+
+function toReport(
+  inputs: CheckInputs,
+  run: CheckReport['run'],
+  findings: Finding[],
+  summary: CheckSummary,
+): CheckReport {
+  return {
+    run,
+    stale: run !== null && summary.fingerprint !== inputs.fingerprint,
+    profiles: inputs.profiles.map((p) => ({ id: p.id, name: p.name })),
+    tracks: inputs.trackTitles,
+    findings,
+    verdicts: summarizeVerdicts(findings),
+    summary: { failures: summary.failures, warnings: summary.warnings, passes: summary.passes },
+  };
+}
+
+/** Runs every target profile's checks over the release and records the run. */
+export async function runChecks(
+  db: Database,
+  actor: Actor,
+  releaseId: string,
+): Promise<CheckReport> {
+  const inputs = await loadCheckInputs(db, actor.organizationId, releaseId);
+  if (inputs.profiles.length === 0) {
+    throw new ApiError('conflict', 'Choose at least one target profile before running the checks.');
+  }
+  const findings = checkReleaseAgainstProfiles(
+    inputs.profiles,
+    inputs.release,
+    inputs.measurements,
+  );
+  const summary = summarize(findings, inputs.fingerprint);
+  const id = randomUUID();
+  const createdAt = new Date();
+  await db.insert(checkRuns).values({
+    id,
+    releaseId,
+    releaseVersion: inputs.releaseVersion,
+    findings,
+    summary,
+    ranBy: actor.userId,
+    createdAt,
+  });
+  await recordAudit(db, {
+    organizationId: actor.organizationId,
+    releaseId,
+    actorId: actor.userId,
+    action: 'checks.run',
+    after: {
+      failures: summary.failures,
+      warnings: summary.warnings,
+      profiles: inputs.profiles.map((p) => p.id),
+    },
+  });
+  return toReport(
+    inputs,
+    {
+      id,
+      createdAt: createdAt.toISOString(),
+      releaseVersion: inputs.releaseVersion,
+      ranBy: actor.userName,
+    },
+    findings,
+    summary,
+  );
+}
+
+/** The latest recorded run, marked stale when anything it read has changed since. */
+export async function latestCheckReport(
+  db: Database,
+  actor: Actor,
+  releaseId: string,
+): Promise<CheckReport> {
+  const inputs = await loadCheckInputs(db, actor.organizationId, releaseId);
+  const [row] = await db
+    .select({ run: checkRuns, ranBy: user.name })
+    .from(checkRuns)
+    .leftJoin(user, eq(user.id, checkRuns.ranBy))
+    .where(eq(checkRuns.releaseId, releaseId))
+    .orderBy(desc(checkRuns.createdAt))
+    .limit(1);
+  if (!row) {
+    return toReport(inputs, null, [], summarize([], inputs.fingerprint));
+  }
+  return toReport(
+    inputs,
+    {
+      id: row.run.id,
+      createdAt: row.run.createdAt.toISOString(),
+      releaseVersion: row.run.releaseVersion,
+      ranBy: row.ranBy,
+    },
+    row.run.findings as Finding[],
+    row.run.summary as CheckSummary,
+  );
+}

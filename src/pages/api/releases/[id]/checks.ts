@@ -1,0 +1,18 @@
+import { z } from 'zod';
+import { getDb } from '@/lib/db/client';
+import { latestCheckReport, runChecks } from '@/lib/server/checks';
+import { defineRoute, parseOrThrow } from '@/lib/server/route';
+
+const paramsSchema = z.object({ id: z.string().min(1).max(64) });
+
+/** The latest check run of the release (stale when anything it read has changed). */
+export const GET = defineRoute('finding:read', async ({ ctx, actor }) => {
+  const { id } = parseOrThrow(paramsSchema, ctx.params, 'release address');
+  return Response.json(await latestCheckReport(getDb(), actor, id));
+});
+
+/** Runs every target profile's checks now and records the run. */
+export const POST = defineRoute('check:run', async ({ ctx, actor }) => {
+  const { id } = parseOrThrow(paramsSchema, ctx.params, 'release address');
+  return Response.json(await runChecks(getDb(), actor, id), { status: 201 });
+});
