@@ -48,9 +48,9 @@ describe('checks in the release workspace', () => {
     await page.screenshot({ path: join(screenshotDir, 'checks-engineer.png'), fullPage: true });
 
     // Filtering to failures only never shows a pass.
-    await page.getByLabel('Show').selectOption('failure');
-    await page.getByLabel('Track').selectOption('');
-    await page.getByLabel('Profile').selectOption('');
+    await page.getByRole('combobox', { name: 'Show', exact: true }).selectOption('failure');
+    await page.getByRole('combobox', { name: 'Track', exact: true }).selectOption('');
+    await page.getByRole('combobox', { name: 'Profile', exact: true }).selectOption('');
     const verdicts = await page.getByTestId('finding').locator(':scope > span').allTextContents();
     expect(verdicts.length).toBeGreaterThan(0);
     for (const v of verdicts) expect(v).toContain('Failure');
@@ -84,7 +84,7 @@ describe('profile editor', () => {
     const truePeak = page.locator('[data-rule="truePeak"]');
     await truePeak.waitFor();
     await truePeak.getByRole('checkbox').check();
-    const ceiling = truePeak.getByLabel('Ceiling');
+    const ceiling = truePeak.getByLabel('Ceiling', { exact: true });
     await ceiling.fill('loud');
     await page.getByRole('button', { name: 'Save profile' }).click();
     await expect.poll(() => truePeak.locator('.text-fail').count()).toBeGreaterThan(0);
@@ -98,10 +98,13 @@ describe('profile editor', () => {
     });
 
     await page.reload();
-    await page.locator('[data-rule="truePeak"]').getByLabel('Ceiling').waitFor();
-    expect(await page.locator('[data-rule="truePeak"]').getByLabel('Ceiling').inputValue()).toBe(
-      '-1.5',
-    );
+    await page.locator('[data-rule="truePeak"]').getByLabel('Ceiling', { exact: true }).waitFor();
+    expect(
+      await page
+        .locator('[data-rule="truePeak"]')
+        .getByLabel('Ceiling', { exact: true })
+        .inputValue(),
+    ).toBe('-1.5');
     await context.close();
   });
 
@@ -111,8 +114,8 @@ describe('profile editor', () => {
     await page.goto('/profiles/cd-master');
     await page.locator('[data-rule="sampleRate"]').waitFor();
     expect(await page.getByRole('button', { name: 'Save profile' }).count()).toBe(0);
-    expect(await page.getByLabel('Sample rates').inputValue()).toBe('44100');
-    expect(await page.getByLabel('Sample rates').isDisabled()).toBe(true);
+    expect(await page.getByLabel('Sample rates', { exact: true }).inputValue()).toBe('44100');
+    expect(await page.getByLabel('Sample rates', { exact: true }).isDisabled()).toBe(true);
     await context.close();
   });
 });

@@ -18,14 +18,25 @@ export function checksQueryKey(releaseId: string) {
 
 const RELEASE_ROW = '__release__';
 
-function formatValue(value: number | string | null, unit: string): string {
+const levelUnits = ['LUFS', 'LU', 'dBTP', 'dBFS', 'dB'];
+
+/** Levels to one decimal (more when one decimal would hide the difference from the limit). */
+function formatValue(
+  value: number | string | null,
+  unit: string,
+  against?: number | string | null,
+): string {
   if (value === null) return '–';
   if (typeof value === 'string') return value;
-  const decimals = ['LUFS', 'LU', 'dBTP', 'dBFS', 'dB'].includes(unit)
-    ? 1
-    : Number.isInteger(value)
-      ? 0
-      : 3;
+  let decimals = levelUnits.includes(unit) ? 1 : Number.isInteger(value) ? 0 : 3;
+  while (
+    decimals < 3 &&
+    typeof against === 'number' &&
+    value !== against &&
+    value.toFixed(decimals) === against.toFixed(decimals)
+  ) {
+    decimals += 1;
+  }
   return `${value.toFixed(decimals)}${unit ? ` ${unit}` : ''}`;
 }
 
@@ -145,7 +156,7 @@ function FindingRow({
         </p>
         <p className="mt-0.5">{finding.message}</p>
         <p className="figures mt-1 text-xs text-slate">
-          measured {formatValue(finding.measured, finding.unit)} · limit{' '}
+          measured {formatValue(finding.measured, finding.unit, finding.limit)} · limit{' '}
           {formatValue(finding.limit, finding.unit)}
           {finding.atSeconds !== undefined && finding.trackId && (
             <>

@@ -4,6 +4,7 @@ import {
   type FindingInput,
   formatClock,
   formatFigure,
+  formatFigureAgainst,
   formatKilohertz,
   formatSeconds,
   isAbove,
@@ -159,7 +160,7 @@ function checkLevels(rules: DeliveryRules, m: AudioMeasurements, emit: Emit): vo
         peak === null
           ? 'The file is digital silence, so it has no sample peak.'
           : broken
-            ? `Sample peak reaches ${formatFigure(peak)} dBFS, above the ${formatFigure(rule.ceilingDbfs)} dBFS ceiling.`
+            ? `Sample peak reaches ${formatFigureAgainst(peak, rule.ceilingDbfs)} dBFS, above the ${formatFigure(rule.ceilingDbfs)} dBFS ceiling.`
             : `Sample peak is ${formatFigure(peak)} dBFS, within the ${formatFigure(rule.ceilingDbfs)} dBFS ceiling.`,
     });
   }
@@ -179,7 +180,7 @@ function checkLevels(rules: DeliveryRules, m: AudioMeasurements, emit: Emit): vo
         peak === null
           ? 'The file is digital silence, so it has no true peak.'
           : broken
-            ? `True peak reaches ${formatFigure(peak)} dBTP${at === null ? '' : ` at ${formatClock(at)}`}, above the ${formatFigure(rule.ceilingDbtp)} dBTP ceiling.`
+            ? `True peak reaches ${formatFigureAgainst(peak, rule.ceilingDbtp)} dBTP${at === null ? '' : ` at ${formatClock(at)}`}, above the ${formatFigure(rule.ceilingDbtp)} dBTP ceiling.`
             : `True peak is ${formatFigure(peak)} dBTP, within the ${formatFigure(rule.ceilingDbtp)} dBTP ceiling.`,
     });
   }
@@ -311,7 +312,7 @@ function checkLoudness(rules: DeliveryRules, m: AudioMeasurements, emit: Emit): 
         value === null
           ? 'The track is too quiet for its short-term loudness to be measured.'
           : broken
-            ? `Short-term loudness reaches ${formatFigure(value)} LUFS${at === null ? '' : ` around ${formatClock(at)}`}, above the ${formatFigure(rule.maxLufs)} LUFS maximum.`
+            ? `Short-term loudness reaches ${formatFigureAgainst(value, rule.maxLufs)} LUFS${at === null ? '' : ` around ${formatClock(at)}`}, above the ${formatFigure(rule.maxLufs)} LUFS maximum.`
             : `Short-term loudness peaks at ${formatFigure(value)} LUFS, within the ${formatFigure(rule.maxLufs)} LUFS maximum.`,
     });
   }

@@ -77,6 +77,22 @@ export function formatFigure(value: number, decimals = 1): string {
   return value < 0 && Number(text) !== 0 ? `−${text}` : text;
 }
 
+/**
+ * A measured figure shown beside its limit: one decimal, or more when one decimal would make
+ * a value that breaks the limit look equal to it ("−0.96 above −1.0", not "−1.0 above −1.0").
+ */
+export function formatFigureAgainst(value: number, limit: number, decimals = 1): string {
+  let places = decimals;
+  while (
+    places < 3 &&
+    value !== limit &&
+    formatFigure(value, places) === formatFigure(limit, places)
+  ) {
+    places += 1;
+  }
+  return formatFigure(value, places);
+}
+
 /** Seconds as m:ss.s, or h:mm:ss for an hour or more ("1:23.4", "21:05", "1:02:03"). */
 export function formatClock(totalSeconds: number, withTenths = true): string {
   const rounded = withTenths ? Math.round(totalSeconds * 10) / 10 : Math.round(totalSeconds);

@@ -356,3 +356,14 @@ describe('summarizeVerdicts', () => {
     expect(summarizeVerdicts(findings, waived)[0]).toMatchObject({ severity: 'pass', warnings: 0 });
   });
 });
+
+describe('figures beside their limit', () => {
+  it('shows enough decimals that a value breaking the limit never looks equal to it', async () => {
+    const { formatFigureAgainst } = await import('@/lib/specs/finding');
+    expect(formatFigureAgainst(-0.96, -1)).toBe('−0.96');
+    expect(formatFigureAgainst(-1.04, -1)).toBe('−1.04');
+    expect(formatFigureAgainst(-0.996, -1)).toBe('−0.996');
+    expect(formatFigureAgainst(-3.2, -1)).toBe('−3.2');
+    expect(formatFigureAgainst(-1, -1)).toBe('−1.0');
+  });
+});
