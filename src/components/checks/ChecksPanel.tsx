@@ -10,6 +10,7 @@ import { RULE_TITLES } from '@/lib/specs/rule-titles';
 import type { RuleId } from '@/lib/specs/schema';
 import { getJson, sendJson } from '../api-client';
 import type { PanelProps } from '../release/workspace-types';
+import { NormalizationPreview } from './NormalizationPreview';
 import { SeverityMark } from './SeverityMark';
 
 export function checksQueryKey(releaseId: string) {
@@ -144,6 +145,7 @@ function FindingRow({
       className="grid grid-cols-[7rem_1fr] gap-3 px-4 py-3"
       data-testid="finding"
       data-rule={finding.ruleId}
+      data-channel={finding.channel ?? undefined}
     >
       <SeverityMark severity={finding.severity} />
       <div>
@@ -382,6 +384,7 @@ export function ChecksPanel({ release, role }: PanelProps) {
             filters={filters}
             setFilters={setFilters}
           />
+          <NormalizationPreview report={report} />
         </>
       )}
     </div>

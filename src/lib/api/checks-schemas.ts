@@ -28,6 +28,21 @@ export const verdictSchema = z.object({
 });
 export type VerdictView = z.infer<typeof verdictSchema>;
 
+const normalizedLevelSchema = z.object({
+  integratedLufs: z.number().nullable(),
+  gainDb: z.number().nullable(),
+  truePeakAfterDbtp: z.number().nullable(),
+  exceedsCeiling: z.boolean(),
+});
+export const normalizationPreviewSchema = z.object({
+  referenceLufs: z.number(),
+  source: z.string(),
+  ceilingDbtp: z.number(),
+  tracks: z.array(normalizedLevelSchema.extend({ trackId: z.string() })),
+  album: normalizedLevelSchema,
+});
+export type NormalizationPreviewView = z.infer<typeof normalizationPreviewSchema>;
+
 export const checkReportSchema = z.object({
   run: z
     .object({
@@ -54,6 +69,7 @@ export const checkReportSchema = z.object({
     warnings: z.number().int(),
     passes: z.number().int(),
   }),
+  normalization: z.array(normalizationPreviewSchema),
 });
 export type CheckReportView = z.infer<typeof checkReportSchema>;
 

@@ -17,6 +17,7 @@ import {
   summarizeVerdicts,
   type Verdict,
 } from '../specs/check-release';
+import { type NormalizationPreview, previewNormalization } from '../specs/normalization';
 import type { DeliveryProfile } from '../specs/schema';
 import type { Finding, MeasurementsByTrack, ReleaseForCheck } from '../specs/types';
 import { recordAudit } from './audit';
@@ -175,6 +176,8 @@ export interface CheckReport {
   findings: Finding[];
   verdicts: Verdict[];
   summary: Omit<CheckSummary, 'fingerprint'>;
+  /** How loudness-normalising players would play the current masters (always fresh). */
+  normalization: NormalizationPreview[];
 }
 
 function summarize(findings: readonly Finding[], fingerprint: string): CheckSummary {
@@ -200,6 +203,7 @@ function toReport(
     findings,
     verdicts: summarizeVerdicts(findings),
     summary: { failures: summary.failures, warnings: summary.warnings, passes: summary.passes },
+    normalization: previewNormalization(inputs.release, inputs.measurements),
   };
 }
 
