@@ -1,0 +1,201 @@
+import { execFileSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import { createWriteStream } from 'node:fs';
+import { mkdtemp, readdir, readFile, rm, stat, writeFile } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { Readable } from 'node:stream';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { BagError, writeBag } from '@/lib/packaging/bag';
+import { bagName, masterFileName, toSafeName } from '@/lib/packaging/naming';
+import { ensureProgram } from '../../support/system-packages';
+
+let dir: string;
+
+beforeAll(async () => {
+  dir = await mkdtemp(join(tmpdir(), 'quayside-bag-'));
+  ensureProgram('/usr/bin/unzip', ['unzip']);
+});
+
+afterAll(async () => {
+  await rm(dir, { recursive: true, force: true });
+});
+
+/** Reads bagit.txt/bag-info.txt/manifests and checks what checksums cannot (RFC 8493). */
+async function checkBagRules(bagDir: string): Promise<void> {
+  // RFC 8493 §2.1.1: bagit.txt is exactly the version and encoding lines.
+  expect(await readFile(join(bagDir, 'bagit.txt'), 'utf8')).toBe(
+    'BagIt-Version: 1.0\nTag-File-Character-Encoding: UTF-8\n',
+  );
+  const manifest = (await readFile(join(bagDir, 'manifest-sha256.txt'), 'utf8')).trim().split('\n');
+  const listed = manifest.map((line) => {
+    const match = /^([0-9a-f]{64}) {2}(data\/.+)$/.exec(line);
+    expect(match, line).not.toBeNull();
+    return match?.[2] ?? '';
+  });
+  // RFC 8493 §3: every payload file is listed, and nothing listed is missing.
+  const onDisk = (await readdir(join(bagDir, 'data'), { recursive: true, withFileTypes: true }))
+    .filter((e) => e.isFile())
+    .map((e) => join(e.parentPath, e.name).slice(bagDir.length + 1));
+  expect(onDisk.sort()).toEqual([...listed].sort());
+  // RFC 8493 §2.2.2: Payload-Oxum = total octets . file count.
+  const info = await readFile(join(bagDir, 'bag-info.txt'), 'utf8');
+  const oxum = /^Payload-Oxum: (\d+)\.(\d+)$/m.exec(info);
+  let octets = 0;
+  for (const path of onDisk) octets += (await stat(join(bagDir, path))).size;
+  expect(oxum?.[1]).toBe(String(octets));
+  expect(oxum?.[2]).toBe(String(onDisk.length));
+  // The tag manifest covers every tag file but itself (RFC 8493 §2.2.1).
+  const tagListed = (await readFile(join(bagDir, 'tagmanifest-sha256.txt'), 'utf8'))
+    .trim()
+    .split('\n')
+    .map((l) => l.slice(66));
+  expect(tagListed.sort()).toEqual(['bag-info.txt', 'bagit.txt', 'manifest-sha256.txt']);
+}
+
+describe('writeBag', () => {
+  it('writes a zip that unzip -t accepts and sha256sum -c verifies, byte for byte', async () => {
+    const audio = Buffer.alloc(3 * 1024 * 1024 + 17);
+    for (let i = 0; i < audio.length; i++) audio[i] = (i * 2654435761) >>> 24;
+    const audioPath = join(dir, 'master.wav');
+    await writeFile(audioPath, audio);
+    const audioSha = createHash('sha256').update(audio).digest('hex');
+
+    const zipPath = join(dir, 'bag.zip');
+    const result = await writeBag({
+      bagName: 'BWS-014-v1',
+      payload: [
+        {
+          path: 'audio/01 The Low Pylons - Harbour Lights.wav',
+          open: () => Readable.from([audio]),
+          compress: false,
+          expectedSha256: audioSha,
+        },
+        {
+          path: 'metadata/release.json',
+          open: () => '{"title":"Night Ferries"}\n',
+          compress: true,
+        },
+        {
+          path: 'metadata/tracks.csv',
+          open: () => 'position,title\n1,Harbour Lights\n',
+          compress: true,
+        },
+      ],
+      info: {
+        fields: [
+          ['Source-Organization', 'Brackwater Sound'],
+          ['External-Identifier', '2001234500012'],
+        ],
+      },
+      output: createWriteStream(zipPath),
+      baggingDate: new Date('2027-01-02T10:00:00Z'),
+    });
+    expect(result.payloadCount).toBe(3);
+    expect(result.payloadSha256.get('data/audio/01 The Low Pylons - Harbour Lights.wav')).toBe(
+      audioSha,
+    );
+    expect(result.archiveBytes).toBe((await stat(zipPath)).size);
+
+    // Debian's unzip tests every entry's CRC.
+    const tested = execFileSync('unzip', ['-t', zipPath], { encoding: 'utf8' });
+    expect(tested).toMatch(/No errors detected/);
+    // Audio is stored, not deflated.
+    const listing = execFileSync('unzip', ['-v', zipPath], { encoding: 'utf8' });
+    expect(listing).toMatch(/Stored\s+\d+\s+0%.*Harbour Lights\.wav/);
+
+    execFileSync('unzip', ['-q', zipPath, '-d', join(dir, 'out')]);
+    const bagDir = join(dir, 'out', 'BWS-014-v1');
+    // GNU coreutils verifies both manifests independently of our code.
+    expect(
+      execFileSync('sha256sum', ['-c', 'manifest-sha256.txt'], { cwd: bagDir, encoding: 'utf8' }),
+    ).toMatch(/Harbour Lights\.wav: OK/);
+    execFileSync('sha256sum', ['-c', '--strict', 'tagmanifest-sha256.txt'], { cwd: bagDir });
+    await checkBagRules(bagDir);
+    expect(await readFile(join(bagDir, 'bag-info.txt'), 'utf8')).toContain(
+      'Bagging-Date: 2027-01-02\n',
+    );
+  });
+
+  it('fails, rather than packaging, when a file does not match its recorded checksum', async () => {
+    const promise = writeBag({
+      bagName: 'bad',
+      payload: [
+        {
+          path: 'audio/x.wav',
+          open: () => Buffer.from('changed bytes'),
+          compress: false,
+          expectedSha256: '0'.repeat(64),
+        },
+      ],
+      info: { fields: [] },
+      output: createWriteStream(join(dir, 'bad.zip')),
+    });
+    await expect(promise).rejects.toBeInstanceOf(BagError);
+  });
+
+  it('refuses unsafe or duplicate payload paths', async () => {
+    for (const path of ['../escape.wav', 'audio/../../x', '/abs.wav', 'a\nb.wav']) {
+      await expect(
+        writeBag({
+          bagName: 'b',
+          payload: [{ path, open: () => 'x', compress: true }],
+          info: { fields: [] },
+          output: createWriteStream(join(dir, 'u.zip')),
+        }),
+      ).rejects.toThrow(/Unsafe payload path/);
+    }
+    await expect(
+      writeBag({
+        bagName: 'b',
+        payload: [
+          { path: 'a/X.wav', open: () => 'x', compress: true },
+          { path: 'a/x.wav', open: () => 'y', compress: true },
+        ],
+        info: { fields: [] },
+        output: createWriteStream(join(dir, 'd.zip')),
+      }),
+    ).rejects.toThrow(/share the path/);
+  });
+});
+
+describe('package file names', () => {
+  it('puts position first and keeps only safe characters', () => {
+    expect(
+      masterFileName({
+        position: 2,
+        disc: 1,
+        side: null,
+        discCount: 1,
+        artist: 'The Low Pylons',
+        title: 'Customs House',
+        extension: 'WAV',
+      }),
+    ).toBe('02 The Low Pylons - Customs House.wav');
+    expect(
+      masterFileName({
+        position: 1,
+        disc: 1,
+        side: 'b',
+        discCount: 1,
+        artist: 'Mira Ostrander',
+        title: 'Lantern Room',
+        versionTitle: 'Edit',
+        extension: 'wav',
+      }),
+    ).toBe('B1 Mira Ostrander - Lantern Room (Edit).wav');
+    expect(
+      masterFileName({
+        position: 3,
+        disc: 2,
+        side: null,
+        discCount: 2,
+        artist: 'Zoë & Ça',
+        title: 'Über/../../etc:passwd',
+        extension: 'aiff',
+      }),
+    ).toBe('2-03 Zoe and Ca - Uber .. .. etc passwd.aiff');
+    expect(toSafeName('\u0000\u0007')).toBe('untitled');
+    expect(bagName('BWS/014', 'rel-x', 3)).toBe('BWS-014-v3');
+  });
+});
