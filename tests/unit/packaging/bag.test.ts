@@ -199,3 +199,92 @@ describe('package file names', () => {
     expect(bagName('BWS/014', 'rel-x', 3)).toBe('BWS-014-v3');
   });
 });
+
+describe('package documents', () => {
+  const release = {
+    id: 'rel-1',
+    title: 'Night Ferries',
+    artist: 'The Low Pylons',
+    labelName: 'Brackwater Sound',
+    catalogueNumber: 'BWS-014',
+    upcEan: '2001234500012',
+    releaseDate: '2027-03-05',
+    genre: null,
+    language: 'en',
+    pLine: '℗ 2026 Brackwater Sound',
+    cLine: '© 2026 Brackwater Sound',
+    explicit: false,
+    packageVersion: 1,
+    approvedAt: '2027-01-02T10:00:00.000Z',
+    approvedBy: 'Nora Quist',
+    profiles: [{ id: 'cd-master', name: 'Compact Disc production master', version: 1 }],
+    tracks: [
+      {
+        trackId: 'trk-1',
+        position: 1,
+        disc: 1,
+        side: null,
+        title: 'Harbour Lights, "live"',
+        versionTitle: null,
+        artist: 'The Low Pylons',
+        isrc: 'XQBRK2600001',
+        iswc: null,
+        explicit: false,
+        gapBeforeSeconds: 2,
+        durationSeconds: 12,
+        credits: [{ name: 'Jonah Pell', role: 'composer' }],
+        fileName: '01 The Low Pylons - Harbour Lights.wav',
+        sha256: 'a'.repeat(64),
+        sampleRateHz: 44_100,
+        bitsPerSample: 16,
+        channels: 2,
+      },
+    ],
+  };
+
+  it('the CSV quotes what needs quoting and parses back to the same values', async () => {
+    const { renderTracksCsv } = await import('@/lib/packaging/documents');
+    const Papa = (await import('papaparse')).default;
+    const csv = renderTracksCsv(release);
+    const parsed = Papa.parse<Record<string, string>>(csv.trim(), { header: true });
+    expect(parsed.errors).toEqual([]);
+    expect(parsed.data[0]?.title).toBe('Harbour Lights, "live"');
+    expect(parsed.data[0]?.credits).toBe('composer: Jonah Pell');
+    expect(parsed.data[0]?.gap_before_seconds).toBe('2.000');
+  });
+
+  it('the HTML report names each track, escapes text and marks waived findings', async () => {
+    const { renderCheckReportHtml } = await import('@/lib/packaging/documents');
+    const html = renderCheckReportHtml({
+      release,
+      checkedAt: '2027-01-02T09:00:00.000Z',
+      findings: [
+        {
+          key: 'k1',
+          ruleId: 'truePeak',
+          profileId: 'cd-master',
+          severity: 'warning',
+          trackId: 'trk-1',
+          channel: null,
+          measured: -0.4,
+          limit: -1,
+          unit: 'dBTP',
+          message: 'True peak <above> the ceiling.',
+        },
+      ],
+      waivers: [
+        {
+          findingKey: 'k1',
+          reason: 'Intended & approved',
+          waivedBy: 'Eli Stroud',
+          waivedAt: '2027-01-01T00:00:00Z',
+        },
+      ],
+    });
+    expect(html).toContain('1. Harbour Lights, &quot;live&quot;');
+    expect(html).toContain('True peak &lt;above&gt; the ceiling.');
+    expect(html).toContain('▲ Warning (waived)');
+    expect(html).toContain('Intended &amp; approved');
+    expect(html).toContain('-0.4 dBTP');
+  });
+});
