@@ -1,10 +1,12 @@
 import { defineMiddleware } from 'astro:middleware';
+import { ensureBackgroundWork } from './lib/server/background';
 import { resolveSession } from './lib/server/session';
 
 /** Pages a signed-out visitor may open; everything else sends them to sign-in. */
 const publicPages = [/^\/sign-in\/?$/, /^\/invite\/[^/]+\/?$/, /^\/dev\/mail\/?$/];
 
 export const onRequest = defineMiddleware(async (context, next) => {
+  ensureBackgroundWork();
   const { pathname } = context.url;
   Object.assign(context.locals, await resolveSession(context.request.headers));
 

@@ -5,17 +5,14 @@ import {
   checkReportSchema,
   type FindingView,
 } from '@/lib/api/checks-schemas';
+import { type WorkflowStatus, workflowStatusSchema } from '@/lib/api/workflow-schemas';
 import { can } from '@/lib/auth/permissions';
 import { RULE_TITLES } from '@/lib/specs/rule-titles';
 import type { RuleId } from '@/lib/specs/schema';
 import { getJson, sendJson } from '../api-client';
-import type { PanelProps } from '../release/workspace-types';
+import { checksQueryKey, type PanelProps, workflowQueryKey } from '../release/workspace-types';
 import { NormalizationPreview } from './NormalizationPreview';
 import { SeverityMark } from './SeverityMark';
-
-export function checksQueryKey(releaseId: string) {
-  return ['checks', releaseId] as const;
-}
 
 const RELEASE_ROW = '__release__';
 
@@ -131,15 +128,143 @@ function VerdictGrid({
   );
 }
 
+type WaiverView = WorkflowStatus['waivers'][number];
+
+const metadataRuleIds = new Set([
+  'isrcPresent',
+  'isrcValid',
+  'isrcUniqueInRelease',
+  'isrcConsistentInLabel',
+  'barcode',
+  'requiredCredits',
+  'artwork',
+]);
+
+/** Waive a warning with a reason, or show the waiver in force and offer to withdraw it. */
+function WaiverControl({
+  finding,
+  releaseId,
+  waiver,
+  mayWaive,
+}: {
+  finding: FindingView;
+  releaseId: string;
+  waiver: WaiverView | undefined;
+  mayWaive: boolean;
+}) {
+  const client = useQueryClient();
+  const [open, setOpen] = useState(false);
+  const [reason, setReason] = useState('');
+  const refresh = (status: WorkflowStatus) => {
+    client.setQueryData(workflowQueryKey(releaseId), status);
+    setOpen(false);
+    setReason('');
+  };
+  const waive = useMutation({
+    mutationFn: () =>
+      sendJson(
+        'POST',
+        `/api/releases/${encodeURIComponent(releaseId)}/waivers`,
+        { findingKey: finding.key, reason },
+        workflowStatusSchema,
+      ),
+    onSuccess: refresh,
+  });
+  const withdraw = useMutation({
+    mutationFn: (id: string) =>
+      sendJson(
+        'DELETE',
+        `/api/releases/${encodeURIComponent(releaseId)}/waivers/${encodeURIComponent(id)}`,
+        undefined,
+        workflowStatusSchema,
+      ),
+    onSuccess: refresh,
+  });
+  if (waiver?.active) {
+    return (
+      <p className="mt-1 text-sm" data-testid="waiver">
+        <span className="font-medium">Waived</span> by {waiver.waivedBy}: “{waiver.reason}”
+        {mayWaive && (
+          <button
+            type="button"
+            className="ml-2 underline"
+            onClick={() => withdraw.mutate(waiver.id)}
+            disabled={withdraw.isPending}
+          >
+            Withdraw
+          </button>
+        )}
+        {withdraw.isError && (
+          <span role="alert" className="ml-2 text-fail">
+            {withdraw.error.message}
+          </span>
+        )}
+      </p>
+    );
+  }
+  if (!mayWaive) return null;
+  if (!open) {
+    return (
+      <button type="button" className="mt-1 text-sm underline" onClick={() => setOpen(true)}>
+        Waive…{waiver && !waiver.active ? ' (an earlier waiver lapsed when the value changed)' : ''}
+      </button>
+    );
+  }
+  return (
+    <form
+      className="mt-2 flex flex-wrap items-end gap-2"
+      onSubmit={(e) => {
+        e.preventDefault();
+        waive.mutate();
+      }}
+    >
+      <label className="flex-1 text-sm">
+        <span className="block">
+          Why is this warning acceptable? (kept with the release and in the package report)
+        </span>
+        <input
+          className="mt-1 w-full rounded border border-slate-light px-2 py-1.5"
+          value={reason}
+          onChange={(e) => setReason(e.target.value)}
+        />
+      </label>
+      <button
+        type="submit"
+        className="rounded bg-buoy px-3 py-1.5 text-sm font-medium text-white disabled:opacity-60"
+        disabled={waive.isPending}
+      >
+        Waive warning
+      </button>
+      <button type="button" className="text-sm underline" onClick={() => setOpen(false)}>
+        Cancel
+      </button>
+      {waive.isError && (
+        <p role="alert" className="basis-full text-sm text-fail">
+          {waive.error.message}
+        </p>
+      )}
+    </form>
+  );
+}
+
 function FindingRow({
   finding,
   releaseId,
   trackTitle,
+  workflow,
 }: {
   finding: FindingView;
   releaseId: string;
   trackTitle: string;
+  workflow: WorkflowStatus | undefined;
 }) {
+  const waiver = workflow?.waivers.find((w) => w.findingKey === finding.key);
+  const editable = workflow ? ['draft', 'in_review', 'returned'].includes(workflow.state) : false;
+  const mayWaive =
+    editable &&
+    (metadataRuleIds.has(finding.ruleId)
+      ? Boolean(workflow?.canWaive.metadata)
+      : Boolean(workflow?.canWaive.audio));
   return (
     <li
       className="grid grid-cols-[7rem_1fr] gap-3 px-4 py-3"
@@ -172,6 +297,14 @@ function FindingRow({
             </>
           )}
         </p>
+        {finding.severity === 'warning' && (
+          <WaiverControl
+            finding={finding}
+            releaseId={releaseId}
+            waiver={waiver}
+            mayWaive={mayWaive}
+          />
+        )}
       </div>
     </li>
   );
@@ -182,11 +315,13 @@ function FindingList({
   releaseId,
   filters,
   setFilters,
+  workflow,
 }: {
   report: CheckReportView;
   releaseId: string;
   filters: Filters;
   setFilters: (f: Filters) => void;
+  workflow: WorkflowStatus | undefined;
 }) {
   const titles = new Map(report.tracks.map((t) => [t.id, `${t.position}. ${t.title}`]));
   const profileNames = new Map(report.profiles.map((p) => [p.id, p.name]));
@@ -279,6 +414,7 @@ function FindingList({
                   finding={f}
                   releaseId={releaseId}
                   trackTitle={f.trackId ? (titles.get(f.trackId) ?? 'Track') : 'Whole release'}
+                  workflow={workflow}
                 />
               ))}
             </ul>
@@ -310,9 +446,17 @@ export function ChecksPanel({ release, role }: PanelProps) {
         {},
         checkReportSchema,
       ),
-    onSuccess: (report) => client.setQueryData(checksQueryKey(release.id), report),
+    onSuccess: (report) => {
+      client.setQueryData(checksQueryKey(release.id), report);
+      void client.invalidateQueries({ queryKey: workflowQueryKey(release.id) });
+    },
   });
   const mayRun = can(role, 'check:run');
+  const workflow = useQuery({
+    queryKey: workflowQueryKey(release.id),
+    queryFn: () =>
+      getJson(`/api/releases/${encodeURIComponent(release.id)}/workflow`, workflowStatusSchema),
+  });
 
   if (release.profiles.length === 0) {
     return (
@@ -383,6 +527,7 @@ export function ChecksPanel({ release, role }: PanelProps) {
             releaseId={release.id}
             filters={filters}
             setFilters={setFilters}
+            workflow={workflow.data}
           />
           <NormalizationPreview report={report} />
         </>

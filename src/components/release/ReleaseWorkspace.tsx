@@ -9,6 +9,8 @@ import { TracksPanel } from '../metadata/TracksPanel';
 import { QueryProvider } from '../QueryProvider';
 import { ReleaseStateBadge } from '../ReleaseStateBadge';
 import { UploadPanel } from '../upload/UploadPanel';
+import { HistoryPanel } from './HistoryPanel';
+import { ProgressPanel } from './ProgressPanel';
 import { RunningOrder } from './RunningOrder';
 import { releaseQueryKey } from './workspace-types';
 
@@ -63,6 +65,11 @@ function Workspace({ releaseId, role }: { releaseId: string; role: Role }) {
         </div>
         <ReleaseStateBadge state={release.state} />
       </header>
+      {can(role, 'finding:read') && (
+        <Section id="progress" title="Progress">
+          <ProgressPanel {...panel} />
+        </Section>
+      )}
       <div className="mt-6">
         <ReleaseFactsPanel {...panel} />
       </div>
@@ -80,6 +87,11 @@ function Workspace({ releaseId, role }: { releaseId: string; role: Role }) {
       {role !== 'distributor' && (
         <Section id="checks" title="Checks">
           <ChecksPanel {...panel} />
+        </Section>
+      )}
+      {can(role, 'audit:read') && (
+        <Section id="history" title="History">
+          <HistoryPanel releaseId={release.id} />
         </Section>
       )}
     </article>

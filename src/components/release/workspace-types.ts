@@ -12,3 +12,11 @@ export interface PanelProps {
 export function releaseQueryKey(releaseId: string) {
   return ['release', releaseId] as const;
 }
+
+export function checksQueryKey(releaseId: string) {
+  return ['checks', releaseId] as const;
+}
+
+export function workflowQueryKey(releaseId: string) {
+  return ['workflow', releaseId] as const;
+}

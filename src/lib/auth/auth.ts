@@ -6,7 +6,7 @@ import { adminAc, defaultStatements, memberAc } from 'better-auth/plugins/organi
 import { asc, eq } from 'drizzle-orm';
 import { type Database, getDb } from '../db/client';
 import * as schema from '../db/schema';
-import { sendMail } from '../mail/mailer';
+import { enqueueMail, flushOutbox } from '../mail/outbox';
 import { renderInvitationMail } from '../mail/templates';
 import { getEnv } from '../server/env';
 import { roleLabels } from './permissions';
@@ -46,7 +46,8 @@ export function createAuth(db: Database) {
         invitationExpiresIn: invitationLifetimeSeconds,
         async sendInvitationEmail(data) {
           const role = data.role as keyof typeof roleLabels;
-          await sendMail(
+          // Queued with retries; flushed at once so the invitation normally arrives now.
+          await enqueueMail(db, data.organization.id, [
             renderInvitationMail({
               to: data.email,
               organizationName: data.organization.name,
@@ -55,7 +56,8 @@ export function createAuth(db: Database) {
               acceptUrl: new URL(`/invite/${data.id}`, env.BETTER_AUTH_URL).toString(),
               expiresAt: data.invitation.expiresAt,
             }),
-          );
+          ]);
+          await flushOutbox(db);
         },
       }),
     ],

@@ -147,6 +147,8 @@ export const releases = sqliteTable(
     /** UPC/EAN stored bare (digits only). */
     upcEan: text('upc_ean'),
     releaseDate: text('release_date'),
+    /** First release of this material elsewhere (reissues), ISO date. */
+    originalReleaseDate: text('original_release_date'),
     genre: text('genre'),
     language: text('language'),
     pLine: text('p_line'),
@@ -271,6 +273,8 @@ export const releaseShares = sqliteTable(
       .notNull()
       .references(() => user.id, { onDelete: 'cascade' }),
     sharedBy: text('shared_by').references(() => user.id, { onDelete: 'set null' }),
+    /** The distributor sees package versions from this one on (earlier ones were not shared). */
+    fromPackageVersion: integer('from_package_version').notNull().default(1),
     createdAt: createdAt(),
   },
   (t) => [uniqueIndex('release_shares_pk').on(t.releaseId, t.userId)],
@@ -413,4 +417,107 @@ export const uploads = sqliteTable(
     updatedAt: updatedAt(),
   },
   (t) => [index('uploads_release_idx').on(t.releaseId, t.createdAt)],
+);
+
+/**
+ * A sign-off of a release's audio (engineer) or metadata (coordinator). It records what it
+ * signed (a fingerprint of the checked inputs), so it lapses when those change.
+ */
+export const signoffs = sqliteTable(
+  'signoffs',
+  {
+    id: text('id').primaryKey(),
+    releaseId: text('release_id')
+      .notNull()
+      .references(() => releases.id, { onDelete: 'cascade' }),
+    kind: text('kind', { enum: ['audio', 'metadata'] }).notNull(),
+    fingerprint: text('fingerprint').notNull(),
+    signedBy: text('signed_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+  },
+  (t) => [index('signoffs_release_idx').on(t.releaseId, t.kind, t.createdAt)],
+);
+
+/** A warning waived with a written reason; it lapses when the waived value changes. */
+export const waivers = sqliteTable(
+  'waivers',
+  {
+    id: text('id').primaryKey(),
+    releaseId: text('release_id')
+      .notNull()
+      .references(() => releases.id, { onDelete: 'cascade' }),
+    findingKey: text('finding_key').notNull(),
+    /** The finding's measured value when waived (see measuredFingerprint). */
+    waivedMeasured: text('waived_measured').notNull(),
+    reason: text('reason').notNull(),
+    waivedBy: text('waived_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+    revokedAt: integer('revoked_at', { mode: 'timestamp_ms' }),
+  },
+  (t) => [index('waivers_release_idx').on(t.releaseId, t.findingKey)],
+);
+
+/** An immutable, versioned package of an approved release in object storage. */
+export const packages = sqliteTable(
+  'packages',
+  {
+    id: text('id').primaryKey(),
+    releaseId: text('release_id')
+      .notNull()
+      .references(() => releases.id, { onDelete: 'cascade' }),
+    version: integer('version').notNull(),
+    /** 'building' until the object is complete and verified, then 'ready'; or 'failed'. */
+    state: text('state', { enum: ['building', 'ready', 'failed'] })
+      .notNull()
+      .default('building'),
+    objectKey: text('object_key').notNull(),
+    sizeBytes: integer('size_bytes'),
+    sha256: text('sha256'),
+    /** [{ path, sizeBytes, sha256 }] of the payload, for the distributor's page. */
+    manifest: text('manifest', { mode: 'json' }),
+    progressFiles: integer('progress_files').notNull().default(0),
+    totalFiles: integer('total_files').notNull().default(0),
+    error: text('error'),
+    createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+    readyAt: integer('ready_at', { mode: 'timestamp_ms' }),
+  },
+  (t) => [uniqueIndex('packages_release_version_idx').on(t.releaseId, t.version)],
+);
+
+/** Every package download: who, when, which version. */
+export const packageDownloads = sqliteTable(
+  'package_downloads',
+  {
+    id: text('id').primaryKey(),
+    packageId: text('package_id')
+      .notNull()
+      .references(() => packages.id, { onDelete: 'cascade' }),
+    userId: text('user_id').references(() => user.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+  },
+  (t) => [index('package_downloads_package_idx').on(t.packageId)],
+);
+
+/** E-mail waiting to be sent; retried until the SMTP server accepts it. */
+export const outbox = sqliteTable(
+  'outbox',
+  {
+    id: text('id').primaryKey(),
+    organizationId: text('organization_id').references(() => organization.id, {
+      onDelete: 'cascade',
+    }),
+    toAddress: text('to_address').notNull(),
+    subject: text('subject').notNull(),
+    textBody: text('text_body').notNull(),
+    htmlBody: text('html_body').notNull(),
+    state: text('state', { enum: ['pending', 'sent', 'failed'] })
+      .notNull()
+      .default('pending'),
+    attempts: integer('attempts').notNull().default(0),
+    lastError: text('last_error'),
+    createdAt: createdAt(),
+    sentAt: integer('sent_at', { mode: 'timestamp_ms' }),
+  },
+  (t) => [index('outbox_state_idx').on(t.state, t.createdAt)],
 );

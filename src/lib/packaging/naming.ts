@@ -52,3 +52,8 @@ export function bagName(
     .replace(/^-+|-+$/g, '');
   return `${base || 'release'}-v${version}`;
 }
+
+/** The name a downloaded package is saved under. */
+export function packageFileName(catalogueNumber: string | null, releaseId: string, version: number): string {
+  return `${bagName(catalogueNumber, releaseId, version)}.zip`;
+}

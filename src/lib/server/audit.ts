@@ -1,5 +1,6 @@
+import { and, desc, eq } from 'drizzle-orm';
 import type { Database } from '../db/client';
-import { auditEvents } from '../db/schema';
+import { auditEvents, releases, user } from '../db/schema';
 
 /** Appends one event to the audit log (who, what, before, after). */
 export async function recordAudit(
@@ -22,4 +23,35 @@ export async function recordAudit(
     before: event.before ?? null,
     after: event.after ?? null,
   });
+}
+
+/** The newest audit events of the organisation, or of one release, with who did them. */
+export async function listAuditEvents(
+  db: Database,
+  organizationId: string,
+  options: { releaseId?: string; limit?: number } = {},
+) {
+  const rows = await db
+    .select({ event: auditEvents, actor: user.name, releaseTitle: releases.title })
+    .from(auditEvents)
+    .leftJoin(user, eq(user.id, auditEvents.actorId))
+    .leftJoin(releases, eq(releases.id, auditEvents.releaseId))
+    .where(
+      and(
+        eq(auditEvents.organizationId, organizationId),
+        options.releaseId ? eq(auditEvents.releaseId, options.releaseId) : undefined,
+      ),
+    )
+    .orderBy(desc(auditEvents.createdAt))
+    .limit(options.limit ?? 200);
+  return rows.map((r) => ({
+    id: r.event.id,
+    action: r.event.action,
+    actor: r.actor,
+    releaseId: r.event.releaseId,
+    releaseTitle: r.releaseTitle,
+    before: r.event.before,
+    after: r.event.after,
+    createdAt: r.event.createdAt.toISOString(),
+  }));
 }

@@ -31,6 +31,10 @@ export interface CheckInputs {
   profiles: DeliveryProfile[];
   /** Hash of everything the checks read: a stored run whose fingerprint differs is stale. */
   fingerprint: string;
+  /** Hash of the audio files, order and gaps (what an audio sign-off covers). */
+  audioFingerprint: string;
+  /** Hash of the metadata the checks read (what a metadata sign-off covers). */
+  metadataFingerprint: string;
   releaseVersion: number;
   trackTitles: { id: string; position: number; title: string; hasAudio: boolean }[];
 }
@@ -137,20 +141,24 @@ export async function loadCheckInputs(
     measurements[track.id] = analysed;
     audioIdentity.push(file ? `${file.id}:${file.analysisState}` : '-');
   }
-  const fingerprint = createHash('sha256')
-    .update(
-      JSON.stringify({
-        forCheck,
-        audioIdentity,
-        profiles: profiles.map((p) => [p.id, p.version, p.rules]),
-      }),
-    )
-    .digest('hex');
+  const hash = (value: unknown) => createHash('sha256').update(JSON.stringify(value)).digest('hex');
+  const profileIdentity = profiles.map((p) => [p.id, p.version, p.rules]);
+  // What the engineer signs: the files, their order and the gaps between them.
+  const audioFingerprint = hash({
+    audioIdentity,
+    layout: forCheck.tracks.map((t) => [t.id, t.position, t.disc, t.side, t.gapBeforeSeconds]),
+    profileIdentity,
+  });
+  // What the coordinator signs: everything else the checks read.
+  const metadataFingerprint = hash({ forCheck, profileIdentity });
+  const fingerprint = hash([audioFingerprint, metadataFingerprint]);
   return {
     release: forCheck,
     measurements,
     profiles,
     fingerprint,
+    audioFingerprint,
+    metadataFingerprint,
     releaseVersion: release.version,
     trackTitles: trackRows.map(({ track, recording }) => ({
       id: track.id,

@@ -1,6 +1,12 @@
 import type { Readable } from 'node:stream';
-import { GetObjectCommand, HeadObjectCommand, S3Client } from '@aws-sdk/client-s3';
+import {
+  DeleteObjectCommand,
+  GetObjectCommand,
+  HeadObjectCommand,
+  S3Client,
+} from '@aws-sdk/client-s3';
 import { Upload } from '@aws-sdk/lib-storage';
+import { getSignedUrl } from '@aws-sdk/s3-request-presigner';
 import { getEnv } from '../server/env';
 
 export interface S3Settings {
@@ -80,4 +86,51 @@ export async function objectExists(
     if ((error as { name?: string }).name === 'NotFound') return false;
     throw error;
   }
+}
+
+/**
+ * Part of an object: `range` is an HTTP byte range such as "bytes=0-1048575". Answers the
+ * body with the range S3 actually served and the object's total size.
+ */
+export async function getObjectRange(
+  s3: { client: S3Client; bucket: string },
+  key: string,
+  range: string,
+): Promise<{ body: Readable; contentRange: string | null; contentLength: number | null }> {
+  const answer = await s3.client.send(
+    new GetObjectCommand({ Bucket: s3.bucket, Key: key, Range: range }),
+  );
+  return {
+    body: answer.Body as Readable,
+    contentRange: answer.ContentRange ?? null,
+    contentLength: answer.ContentLength ?? null,
+  };
+}
+
+/** Deletes the object under `key`; deleting a missing object is not an error. */
+export async function deleteObject(
+  s3: { client: S3Client; bucket: string },
+  key: string,
+): Promise<void> {
+  await s3.client.send(new DeleteObjectCommand({ Bucket: s3.bucket, Key: key }));
+}
+
+/** A short-lived GET URL for the object, optionally offered as a download named `fileName`. */
+export async function presignGetUrl(
+  s3: { client: S3Client; bucket: string },
+  key: string,
+  options: { expiresInSeconds: number; downloadName?: string },
+): Promise<string> {
+  const disposition = options.downloadName
+    ? `attachment; filename*=UTF-8''${encodeURIComponent(options.downloadName)}`
+    : undefined;
+  return getSignedUrl(
+    s3.client,
+    new GetObjectCommand({
+      Bucket: s3.bucket,
+      Key: key,
+      ...(disposition ? { ResponseContentDisposition: disposition } : {}),
+    }),
+    { expiresIn: options.expiresInSeconds },
+  );
 }

@@ -1,0 +1,1 @@
+ALTER TABLE `releases` ADD `original_release_date` text;
