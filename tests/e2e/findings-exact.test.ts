@@ -137,6 +137,7 @@ beforeAll(async () => {
     profiles: ['vinyl-7-45'],
     upcEan: '2001234500067',
     artwork: false,
+    storeAudio: false,
     tracks: [
       {
         title: 'Long Side',

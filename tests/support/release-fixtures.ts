@@ -2,10 +2,11 @@
  * Builds releases for tests straight into the database: generated masters measured by our
  * audio engine (as an upload would be), recordings, tracks, target profiles and artwork facts.
  */
-import { randomUUID } from 'node:crypto';
-import { mkdtemp, rm, stat } from 'node:fs/promises';
+import { createHash, randomUUID } from 'node:crypto';
+import { mkdtemp, readFile, rm, stat } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { inject } from 'vitest';
 import { analyzeFileInThread } from '@/lib/audio/analyze-in-thread';
 import type { Database } from '@/lib/db/client';
 import {
@@ -16,6 +17,7 @@ import {
   releases,
   tracks,
 } from '@/lib/db/schema';
+import { createS3Client, putObject } from '@/lib/storage/s3';
 import { type WavSpec, writeWavFile } from './wav-stream';
 
 export interface FixtureTrack {
@@ -35,7 +37,22 @@ export interface FixtureRelease {
   upcEan: string;
   /** Artwork facts for the store rules (3000 × 3000 JPEG when true). */
   artwork: boolean;
+  /** Store the masters in the S3 fake (needed to build a package); default true. */
+  storeAudio?: boolean;
+  state?: 'draft' | 'in_review';
   tracks: FixtureTrack[];
+}
+
+function fixtureS3() {
+  const { endpoint, bucket } = inject('s3');
+  const settings = {
+    endpoint,
+    bucket,
+    region: 'us-east-1',
+    accessKeyId: 'S3RVER',
+    secretAccessKey: 'S3RVER',
+  };
+  return { client: createS3Client(settings), bucket };
 }
 
 export async function createFixtureRelease(db: Database, fixture: FixtureRelease): Promise<void> {
@@ -48,6 +65,8 @@ export async function createFixtureRelease(db: Database, fixture: FixtureRelease
       artist: 'Fixture Artist',
       labelName: 'Brackwater Sound',
       upcEan: fixture.upcEan,
+      catalogueNumber: `FIX-${fixture.id.slice(-6)}`,
+      state: fixture.state ?? 'in_review',
     });
     for (const profileId of fixture.profiles) {
       await db.insert(releaseProfiles).values({ releaseId: fixture.id, profileId });
@@ -75,6 +94,13 @@ export async function createFixtureRelease(db: Database, fixture: FixtureRelease
         const path = join(dir, `${index}.wav`);
         await writeWavFile(path, track.audio);
         const measurements = await analyzeFileInThread(path);
+        const objectKey = `fixtures/${recordingId}.wav`;
+        let sha256 = '0'.repeat(64);
+        if (fixture.storeAudio ?? true) {
+          const bytes = await readFile(path);
+          sha256 = createHash('sha256').update(bytes).digest('hex');
+          await putObject(fixtureS3(), objectKey, bytes, 'audio/wav');
+        }
         await db.insert(recordings).values({
           id: recordingId,
           organizationId: 'org-brackwater',
@@ -87,10 +113,10 @@ export async function createFixtureRelease(db: Database, fixture: FixtureRelease
           id: `aud-${recordingId}`,
           recordingId,
           fileVersion: 1,
-          objectKey: `fixtures/${recordingId}.wav`,
+          objectKey,
           originalName: `${track.title}.wav`,
           sizeBytes: (await stat(path)).size,
-          sha256: '0'.repeat(64),
+          sha256,
           sampleRateHz: track.audio.sampleRateHz,
           bitsPerSample: track.audio.bitsPerSample,
           channels: track.audio.channels,

@@ -27,43 +27,61 @@ export async function enqueueMail(
 }
 
 let flushing: Promise<number> | null = null;
+let requestedAgain = false;
 
-/** Sends every pending message once; returns how many went out. Safe to call often. */
+async function sendPendingOnce(db: Database): Promise<number> {
+  let sent = 0;
+  const pending = await db
+    .select()
+    .from(outbox)
+    .where(and(eq(outbox.state, 'pending'), lt(outbox.attempts, maxAttempts)))
+    .orderBy(asc(outbox.createdAt))
+    .limit(50);
+  for (const row of pending) {
+    try {
+      await sendMail({
+        to: row.toAddress,
+        subject: row.subject,
+        text: row.textBody,
+        html: row.htmlBody,
+      });
+      await db
+        .update(outbox)
+        .set({ state: 'sent', sentAt: new Date(), attempts: row.attempts + 1 })
+        .where(eq(outbox.id, row.id));
+      sent++;
+    } catch (error) {
+      const attempts = row.attempts + 1;
+      await db
+        .update(outbox)
+        .set({
+          attempts,
+          lastError: error instanceof Error ? error.message : String(error),
+          state: attempts >= maxAttempts ? 'failed' : 'pending',
+        })
+        .where(eq(outbox.id, row.id));
+    }
+  }
+  return sent;
+}
+
+/**
+ * Sends every pending message; returns how many went out. Safe to call often: a call while
+ * a flush runs makes that flush look again when it ends, so nothing queued meanwhile waits
+ * for the timer.
+ */
 export function flushOutbox(db: Database): Promise<number> {
-  flushing ??= (async () => {
+  if (flushing) {
+    requestedAgain = true;
+    return flushing;
+  }
+  flushing = (async () => {
     let sent = 0;
     try {
-      const pending = await db
-        .select()
-        .from(outbox)
-        .where(and(eq(outbox.state, 'pending'), lt(outbox.attempts, maxAttempts)))
-        .orderBy(asc(outbox.createdAt))
-        .limit(50);
-      for (const row of pending) {
-        try {
-          await sendMail({
-            to: row.toAddress,
-            subject: row.subject,
-            text: row.textBody,
-            html: row.htmlBody,
-          });
-          await db
-            .update(outbox)
-            .set({ state: 'sent', sentAt: new Date(), attempts: row.attempts + 1 })
-            .where(eq(outbox.id, row.id));
-          sent++;
-        } catch (error) {
-          const attempts = row.attempts + 1;
-          await db
-            .update(outbox)
-            .set({
-              attempts,
-              lastError: error instanceof Error ? error.message : String(error),
-              state: attempts >= maxAttempts ? 'failed' : 'pending',
-            })
-            .where(eq(outbox.id, row.id));
-        }
-      }
+      do {
+        requestedAgain = false;
+        sent += await sendPendingOnce(db);
+      } while (requestedAgain);
     } finally {
       flushing = null;
     }

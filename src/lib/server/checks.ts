@@ -90,8 +90,11 @@ export async function loadCheckInputs(
         recordingIds.length ? notInArray(recordings.id, recordingIds) : undefined,
       ),
     );
+  // Only the codes this release uses matter to it; other releases' new codes must not make
+  // its checks or sign-offs look out of date.
+  const ownIsrcs = new Set(trackRows.map((r) => r.recording.isrc).filter(Boolean));
   const labelIsrcRecordings: Record<string, string[]> = {};
-  for (const r of elsewhere) {
+  for (const r of elsewhere.filter((e) => ownIsrcs.has(e.isrc))) {
     if (r.isrc) labelIsrcRecordings[r.isrc] = [...(labelIsrcRecordings[r.isrc] ?? []), r.id];
   }
 
