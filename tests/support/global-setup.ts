@@ -24,6 +24,8 @@ declare module 'vitest' {
     mailUrl: string;
     s3: { endpoint: string; bucket: string };
     dataDir: string;
+    /** The environment the server runs with, for tests that start a second server process. */
+    serverEnv: Record<string, string>;
   }
 }
 
@@ -65,6 +67,23 @@ export default async function setup(project: TestProject) {
     bucket: process.env.S3_BUCKET ?? '',
   });
   project.provide('dataDir', dataDir);
+  const serverEnv: Record<string, string> = {};
+  for (const key of [
+    'DATABASE_URL',
+    'BETTER_AUTH_SECRET',
+    'S3_ENDPOINT',
+    'S3_BUCKET',
+    'S3_REGION',
+    'S3_ACCESS_KEY_ID',
+    'S3_SECRET_ACCESS_KEY',
+    'SMTP_URL',
+    'MAIL_FAKE_URL',
+    'QUAYSIDE_BUILD_DIR',
+  ]) {
+    const value = process.env[key];
+    if (value) serverEnv[key] = value;
+  }
+  project.provide('serverEnv', serverEnv);
 
   return async () => {
     server.closeAllConnections();

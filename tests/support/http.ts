@@ -10,8 +10,13 @@ export const demoEmails = {
 } as const;
 
 export class Client {
-  readonly baseUrl = inject('baseUrl');
+  readonly baseUrl: string;
   private cookies = new Map<string, string>();
+
+  /** A client of the test server, or of another server at `baseUrl`. */
+  constructor(baseUrl: string = inject('baseUrl')) {
+    this.baseUrl = baseUrl;
+  }
 
   async request(
     method: string,
@@ -55,8 +60,8 @@ export class Client {
   }
 }
 
-export async function signedIn(email: string): Promise<Client> {
-  const client = new Client();
+export async function signedIn(email: string, baseUrl?: string): Promise<Client> {
+  const client = new Client(baseUrl);
   await client.signIn(email);
   return client;
 }

@@ -1,0 +1,154 @@
+/**
+ * A server killed while it builds a package leaves no package object and no 'ready' row;
+ * the next server marks the build failed, and building it again gives a valid bag.
+ */
+import { type ChildProcess, execFileSync, spawn } from 'node:child_process';
+import { mkdtemp, rm, writeFile } from 'node:fs/promises';
+import { createServer } from 'node:net';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { GetObjectCommand, HeadObjectCommand } from '@aws-sdk/client-s3';
+import { eq } from 'drizzle-orm';
+import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { workflowStatusSchema } from '@/lib/api/workflow-schemas';
+import { createDatabase } from '@/lib/db/client';
+import { packages } from '@/lib/db/schema';
+import { createS3Client } from '@/lib/storage/s3';
+import { checkBagRules } from '../support/bagit';
+import { demoEmails, signedIn } from '../support/http';
+import { cleanTone, createFixtureRelease } from '../support/release-fixtures';
+import { ensureProgram } from '../support/system-packages';
+
+const db = createDatabase(inject('databaseUrl'));
+const { endpoint, bucket } = inject('s3');
+const s3 = createS3Client({
+  endpoint,
+  bucket,
+  region: 'us-east-1',
+  accessKeyId: 'S3RVER',
+  secretAccessKey: 'S3RVER',
+});
+const releaseId = 'rel-crash';
+const children: ChildProcess[] = [];
+let dir: string;
+
+function freePort(): Promise<number> {
+  return new Promise((resolve) => {
+    const probe = createServer();
+    probe.listen(0, '127.0.0.1', () => {
+      const address = probe.address();
+      probe.close(() => resolve(typeof address === 'object' && address ? address.port : 0));
+    });
+  });
+}
+
+/** Starts the built app in a separate process with the test server's environment. */
+async function startServerProcess(): Promise<{ child: ChildProcess; url: string }> {
+  const port = await freePort();
+  const url = `http://localhost:${port}`;
+  const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/serve.ts'], {
+    env: { ...process.env, ...inject('serverEnv'), PORT: String(port), BETTER_AUTH_URL: url },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  children.push(child);
+  for (let i = 0; i < 100; i++) {
+    const ok = await fetch(`${url}/sign-in`)
+      .then((r) => r.ok)
+      .catch(() => false);
+    if (ok) return { child, url };
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  throw new Error('the second server did not start');
+}
+
+async function packageRow() {
+  const [row] = await db.select().from(packages).where(eq(packages.releaseId, releaseId));
+  return row;
+}
+
+beforeAll(async () => {
+  ensureProgram('/usr/bin/unzip', ['unzip']);
+  dir = await mkdtemp(join(tmpdir(), 'quayside-crash-'));
+  // Large enough (about 70 MB of 96 kHz/24-bit audio) that building takes a while.
+  const long = cleanTone({ sampleRateHz: 96_000, bitsPerSample: 24, seconds: 60, peakDbfs: -8 });
+  await createFixtureRelease(db, {
+    id: releaseId,
+    title: 'Storm Surge',
+    profiles: ['pre-limiter'],
+    upcEan: '2001234500098',
+    artwork: false,
+    tracks: [
+      { title: 'First Swell', isrc: 'XQBRK2670001', gapBeforeFrames: 150, audio: long },
+      { title: 'Second Swell', isrc: 'XQBRK2670002', gapBeforeFrames: 150, audio: long },
+    ],
+  });
+}, 120_000);
+
+afterAll(async () => {
+  for (const child of children) child.kill('SIGKILL');
+  await rm(dir, { recursive: true, force: true });
+});
+
+describe('a server killed mid-package', () => {
+  it('leaves no package object, and a retry on the next server makes a valid package', async () => {
+    const first = await startServerProcess();
+    const engineer = await signedIn(demoEmails.engineer, first.url);
+    const coordinator = await signedIn(demoEmails.coordinator, first.url);
+    expect((await engineer.post(`/api/releases/${releaseId}/checks`, {})).status).toBe(201);
+    expect((await engineer.post(`/api/releases/${releaseId}/sign-off/audio`, {})).status).toBe(200);
+    const signed = workflowStatusSchema.parse(
+      await (await coordinator.post(`/api/releases/${releaseId}/sign-off/metadata`, {})).json(),
+    );
+    expect(signed.approvable, JSON.stringify(signed.blockers)).toBe(true);
+
+    const approved = await coordinator.post(`/api/releases/${releaseId}/approve`, {
+      version: signed.version,
+    });
+    expect(approved.status).toBe(200);
+    first.child.kill('SIGKILL');
+    await new Promise((r) => first.child.once('exit', r));
+
+    const interrupted = await packageRow();
+    expect(interrupted?.state).toBe('building');
+    const head = await s3
+      .send(new HeadObjectCommand({ Bucket: bucket, Key: interrupted?.objectKey ?? '' }))
+      .catch((e: Error) => e);
+    expect(head).toBeInstanceOf(Error);
+
+    const second = await startServerProcess();
+    const admin = await signedIn(demoEmails.admin, second.url);
+    for (let i = 0; i < 50 && (await packageRow())?.state === 'building'; i++) {
+      await new Promise((r) => setTimeout(r, 100));
+    }
+    const failed = await packageRow();
+    expect(failed?.state).toBe('failed');
+    expect(failed?.error).toMatch(/server stopped/);
+
+    expect((await admin.post(`/api/packages/${failed?.id}/retry`, {})).status).toBe(202);
+    for (let i = 0; i < 150 && (await packageRow())?.state === 'building'; i++) {
+      await new Promise((r) => setTimeout(r, 200));
+    }
+    const ready = await packageRow();
+    expect(ready?.state).toBe('ready');
+    expect(ready?.version).toBe(1);
+
+    const answer = await s3.send(
+      new GetObjectCommand({ Bucket: bucket, Key: ready?.objectKey ?? '' }),
+    );
+    const bytes = Buffer.from(
+      await (answer.Body as { transformToByteArray(): Promise<Uint8Array> }).transformToByteArray(),
+    );
+    const zip = join(dir, 'retry.zip');
+    await writeFile(zip, bytes);
+    expect(execFileSync('unzip', ['-t', zip], { encoding: 'utf8' })).toMatch(/No errors detected/);
+    execFileSync('unzip', ['-q', zip, '-d', join(dir, 'out')]);
+    const [bagFolder] = execFileSync('ls', [join(dir, 'out')], { encoding: 'utf8' })
+      .trim()
+      .split('\n');
+    expect(bagFolder).toMatch(/-v1$/);
+    const bagDir = join(dir, 'out', bagFolder ?? '');
+    execFileSync('sha256sum', ['-c', '--strict', 'manifest-sha256.txt'], { cwd: bagDir });
+    execFileSync('sha256sum', ['-c', '--strict', 'tagmanifest-sha256.txt'], { cwd: bagDir });
+    await checkBagRules(bagDir);
+  });
+});
