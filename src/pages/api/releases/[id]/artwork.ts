@@ -1,0 +1,49 @@
+import { z } from 'zod';
+import { getDb } from '@/lib/db/client';
+import { ApiError } from '@/lib/server/errors';
+import { getArtworkInfo, readArtworkBody, uploadArtwork } from '@/lib/server/metadata/artwork';
+import { getRelease } from '@/lib/server/releases';
+import { defineRoute, parseOrThrow } from '@/lib/server/route';
+
+const paramsSchema = z.object({ id: z.string().min(1).max(64) });
+const uploadHeadersSchema = z.object({
+  contentType: z.enum(['image/jpeg', 'image/png'], {
+    error: 'Send the image itself as the body, with Content-Type image/jpeg or image/png.',
+  }),
+  fileName: z.string().trim().min(1).max(255),
+});
+
+/** The release's current cover art (facts and an address for the image), or null. */
+export const GET = defineRoute('release:read', async ({ ctx, actor }) => {
+  const { id } = parseOrThrow(paramsSchema, ctx.params, 'release address');
+  if (!(await getRelease(getDb(), actor, id))) {
+    throw new ApiError('not_found', 'No release with that id is visible to you.');
+  }
+  return Response.json({ artwork: await getArtworkInfo(getDb(), id) });
+});
+
+/** Uploads new cover art: the body is the image; X-File-Name carries its name. */
+export const POST = defineRoute('metadata:edit', async ({ ctx, actor }) => {
+  const { id } = parseOrThrow(paramsSchema, ctx.params, 'release address');
+  const type = (ctx.request.headers.get('content-type') ?? '').split(';')[0]!.trim().toLowerCase();
+  if (type !== 'image/jpeg' && type !== 'image/png') {
+    throw new ApiError(
+      'unsupported_media_type',
+      'Cover art must be a JPEG or PNG, sent as image/jpeg or image/png.',
+    );
+  }
+  const headers = parseOrThrow(
+    uploadHeadersSchema,
+    {
+      contentType: type,
+      fileName: decodeURIComponent(ctx.request.headers.get('x-file-name') ?? 'cover'),
+    },
+    'upload',
+  );
+  const bytes = await readArtworkBody(ctx.request);
+  const artwork = await uploadArtwork(getDb(), actor, id, {
+    bytes,
+    originalName: headers.fileName,
+  });
+  return Response.json({ artwork }, { status: 201 });
+});
