@@ -123,6 +123,7 @@ export async function getRelease(
       trackRows.length,
       trackRows.length ? seconds : null,
     ),
+    originalReleaseDate: row.originalReleaseDate,
     genre: row.genre,
     language: row.language,
     pLine: row.pLine,
@@ -166,6 +167,7 @@ async function loadTracks(
     side: track.side,
     gapBeforeFrames: track.gapBeforeFrames,
     recordingId: recording.id,
+    recordingVersion: recording.version,
     title: recording.title,
     versionTitle: recording.versionTitle,
     artist: recording.artist,
@@ -175,6 +177,7 @@ async function loadTracks(
     credits: recording.credits,
     audio: audio
       ? {
+          audioFileId: audio.id,
           fileVersion: audio.fileVersion,
           originalName: audio.originalName,
           sizeBytes: audio.sizeBytes,
@@ -186,6 +189,7 @@ async function loadTracks(
             audio.durationSamples != null && audio.sampleRateHz
               ? audio.durationSamples / audio.sampleRateHz
               : null,
+          analysisState: audio.analysisState,
         }
       : null,
   }));
