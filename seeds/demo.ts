@@ -16,6 +16,8 @@ import type { Database } from '../src/lib/db/client';
 import {
   audioFiles,
   auditEvents,
+  isrcAllocations,
+  isrcRegistrants,
   member,
   organization,
   recordings,
@@ -243,6 +245,9 @@ async function createScenario(db: Database, auth: Auth): Promise<void> {
         role: u.role,
       });
     }
+    // The label's (invented) ISRC registrant code; codes already on demo recordings count
+    // as handed out, so allocation continues after them.
+    await tx.insert(isrcRegistrants).values({ organizationId: label.id, prefix: 'XQBRK' });
     let seed = 1;
     for (const [index, r] of demoReleases.entries()) {
       await tx.insert(releases).values({
@@ -283,6 +288,14 @@ async function createScenario(db: Database, auth: Auth): Promise<void> {
             { name: 'Eli Stroud', role: 'mastering-engineer' },
           ],
         });
+        if (t.isrc) {
+          await tx.insert(isrcAllocations).values({
+            isrc: t.isrc,
+            organizationId: label.id,
+            recordingId,
+            allocatedBy: idOf('coordinator'),
+          });
+        }
         await tx.insert(tracks).values({
           id: `trk-${r.id.slice(4)}-${position + 1}`,
           releaseId: r.id,

@@ -64,40 +64,40 @@ beforeAll(async () => {
     tracks: [
       {
         title: 'Wrong Rate',
-        isrc: 'XQBRK2690001',
+        isrc: 'XQFXT2690001',
         gapBeforeFrames: 150,
         audio: cleanTone({ sampleRateHz: 48_000, bitsPerSample: 16, seconds: 6, peakDbfs: -3 }),
       },
       {
         title: 'Over the Top',
-        isrc: 'XQBRK2690002',
+        isrc: 'XQFXT2690002',
         gapBeforeFrames: 150,
         audio: interSampleOver(1.3, 6),
       },
       {
         title: 'Short Piece',
-        isrc: 'XQBRK2690003',
+        isrc: 'XQFXT2690003',
         gapBeforeFrames: 150,
         audio: cleanTone({ ...cd, seconds: 3, peakDbfs: -3 }),
       },
       {
         title: 'Twice Told',
         recording: 'twice',
-        isrc: 'XQBRK2690004',
+        isrc: 'XQFXT2690004',
         gapBeforeFrames: 150,
         audio: cleanTone({ ...cd, seconds: 5, peakDbfs: -3 }),
       },
       {
         title: 'Twice Told',
         recording: 'twice',
-        isrc: 'XQBRK2690004',
+        isrc: 'XQFXT2690004',
         gapBeforeFrames: 150,
         audio: cleanTone({ ...cd, seconds: 5, peakDbfs: -3 }),
       },
-      { title: 'Run Up', isrc: 'XQBRK2690005', gapBeforeFrames: 150, audio: endsOnACrest(6) },
+      { title: 'Run Up', isrc: 'XQFXT2690005', gapBeforeFrames: 150, audio: endsOnACrest(6) },
       {
         title: 'Hard Join',
-        isrc: 'XQBRK2690006',
+        isrc: 'XQFXT2690006',
         gapBeforeFrames: 0,
         audio: cleanTone({ ...cd, seconds: 6, peakDbfs: -3 }),
       },
@@ -112,7 +112,7 @@ beforeAll(async () => {
     tracks: [
       {
         title: 'Padded Sixteen',
-        isrc: 'XQBRK2690007',
+        isrc: 'XQFXT2690007',
         gapBeforeFrames: 150,
         // 24-bit container, 16-bit content: the low 8 bits of every sample are zero.
         audio: cleanTone({
@@ -125,7 +125,7 @@ beforeAll(async () => {
       },
       {
         title: 'True Twenty-Four',
-        isrc: 'XQBRK2690008',
+        isrc: 'XQFXT2690008',
         gapBeforeFrames: 150,
         audio: cleanTone({ sampleRateHz: 48_000, bitsPerSample: 24, seconds: 5, peakDbfs: -3 }),
       },
@@ -141,7 +141,7 @@ beforeAll(async () => {
     tracks: [
       {
         title: 'Long Side',
-        isrc: 'XQBRK2690009',
+        isrc: 'XQFXT2690009',
         gapBeforeFrames: 0,
         side: 'A',
         // 6.5 minutes on one side of a 7-inch at 45 rpm: past the 6-minute limit
@@ -150,7 +150,7 @@ beforeAll(async () => {
       },
       {
         title: 'Flip',
-        isrc: 'XQBRK2690010',
+        isrc: 'XQFXT2690010',
         gapBeforeFrames: 0,
         side: 'B',
         audio: cleanTone({ ...cd, bitsPerSample: 24, seconds: 30, peakDbfs: -20 }),

@@ -54,11 +54,11 @@ beforeAll(async () => {
     tracks: [
       {
         title: 'Mooring Lines',
-        isrc: 'XQBRK2660001',
+        isrc: 'XQFXT2660001',
         gapBeforeFrames: 150,
         audio: cleanTone({ sampleRateHz: 44_100, bitsPerSample: 16, seconds: 5, peakDbfs: -3 }),
       },
-      { title: 'High Water Mark', isrc: 'XQBRK2660002', gapBeforeFrames: 150, audio: warmMaster() },
+      { title: 'High Water Mark', isrc: 'XQFXT2660002', gapBeforeFrames: 150, audio: warmMaster() },
     ],
   });
 }, 60_000);

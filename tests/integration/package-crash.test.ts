@@ -78,8 +78,8 @@ beforeAll(async () => {
     upcEan: '2001234500098',
     artwork: false,
     tracks: [
-      { title: 'First Swell', isrc: 'XQBRK2670001', gapBeforeFrames: 150, audio: long },
-      { title: 'Second Swell', isrc: 'XQBRK2670002', gapBeforeFrames: 150, audio: long },
+      { title: 'First Swell', isrc: 'XQFXT2670001', gapBeforeFrames: 150, audio: long },
+      { title: 'Second Swell', isrc: 'XQFXT2670002', gapBeforeFrames: 150, audio: long },
     ],
   });
 }, 120_000);

@@ -72,11 +72,11 @@ beforeAll(async () => {
     tracks: [
       {
         title: 'Slack Water',
-        isrc: 'XQBRK2680001',
+        isrc: 'XQFXT2680001',
         gapBeforeFrames: 150,
         audio: cleanTone({ sampleRateHz: 44_100, bitsPerSample: 16, seconds: 6, peakDbfs: -3 }),
       },
-      { title: 'Bright Buoy', isrc: 'XQBRK2680002', gapBeforeFrames: 150, audio: hotMaster() },
+      { title: 'Bright Buoy', isrc: 'XQFXT2680002', gapBeforeFrames: 150, audio: hotMaster() },
     ],
   });
   [engineer, coordinator, distributor] = await Promise.all([
@@ -325,7 +325,7 @@ describe('from checks to delivery', () => {
       tracks: [
         {
           title: 'Private',
-          isrc: 'XQBRK2680003',
+          isrc: 'XQFXT2680003',
           gapBeforeFrames: 150,
           audio: cleanTone({ sampleRateHz: 44_100, bitsPerSample: 16, seconds: 5, peakDbfs: -3 }),
         },

@@ -35,7 +35,6 @@ function CopyForm({
         className="w-72 rounded border border-slate-light px-2 py-1 text-sm"
         value={name}
         onChange={(e) => setName(e.target.value)}
-        autoFocus
       />
       <button
         type="submit"

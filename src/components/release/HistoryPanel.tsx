@@ -19,6 +19,21 @@ const labels: Record<string, string> = {
   'package.downloaded': 'downloaded the package',
   'delivery.acknowledged': 'acknowledged the delivery',
   'delivery.returned': 'returned the release',
+  'release.metadata.update': 'changed the release details',
+  'track.metadata.update': 'changed a track',
+  'track.isrc.update': 'changed an ISRC',
+  'track.credits.update': 'changed credits',
+  'track.isrc.allocate': 'allocated ISRCs',
+  'track.metadata.import': 'imported track metadata from CSV',
+  'release.order.update': 'changed the running order',
+  'release.gaps.update': 'changed the gaps',
+  'release.artwork.upload': 'uploaded cover art',
+  'registrant.update': 'set the ISRC registrant code',
+  'profile.created': 'made a delivery profile',
+  'profile.updated': 'changed a delivery profile',
+  'profile.deleted': 'deleted a delivery profile',
+  'member.invited': 'invited a member',
+  'member.joined': 'joined the label',
 };
 
 function describe(value: unknown): string {

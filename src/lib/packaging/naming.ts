@@ -54,6 +54,10 @@ export function bagName(
 }
 
 /** The name a downloaded package is saved under. */
-export function packageFileName(catalogueNumber: string | null, releaseId: string, version: number): string {
+export function packageFileName(
+  catalogueNumber: string | null,
+  releaseId: string,
+  version: number,
+): string {
   return `${bagName(catalogueNumber, releaseId, version)}.zip`;
 }

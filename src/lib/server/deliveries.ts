@@ -89,7 +89,7 @@ export async function createDownloadLink(db: Database, actor: Actor, packageId: 
     .innerJoin(releases, eq(releases.id, packages.releaseId))
     .where(and(eq(packages.id, packageId), eq(releases.organizationId, actor.organizationId)))
     .limit(1);
-  if (!row || row.pkg.state !== 'ready')
+  if (row?.pkg.state !== 'ready')
     throw new ApiError('not_found', 'No such package is available to you.');
   if (actor.role !== 'admin') {
     const [share] = await db
