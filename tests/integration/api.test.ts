@@ -139,8 +139,9 @@ describe('demo audio in the S3 fake', () => {
       accessKeyId: 'S3RVER',
       secretAccessKey: 'S3RVER',
     });
+    const demoRecording = /^rec-(night-ferries|tideline|signal-hill)-\d$/;
     const rows = (await db.select().from(audioFiles)).filter((r) =>
-      r.objectKey.startsWith('audio/'),
+      demoRecording.test(r.recordingId),
     );
     expect(rows.length).toBe(9);
     for (const row of rows) {
