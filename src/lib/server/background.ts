@@ -1,12 +1,14 @@
 import { getDb } from '../db/client';
 import { flushOutbox, startOutboxWorker } from '../mail/outbox';
 import { recoverInterruptedPackages } from './packaging';
+import { resumeInterruptedWork } from './uploads/analysis-queue';
 
 let started = false;
 
 /**
  * Work the server does besides answering requests: retrying queued e-mail, and (once, at
- * start) failing package builds that a stopped server left unfinished. Idempotent; the
+ * start) failing package builds and uploads that a stopped server left unfinished and
+ * resuming its unfinished analyses. Idempotent; the
  * middleware calls it on every request.
  */
 export function ensureBackgroundWork(): void {
@@ -19,5 +21,8 @@ export function ensureBackgroundWork(): void {
       (n) => n > 0 && console.log(`[packaging] ${n} interrupted package build(s) marked failed`),
     )
     .catch((error) => console.error('[packaging] recovery failed', error));
+  void resumeInterruptedWork(db).catch((error) =>
+    console.error('[uploads] recovery failed', error),
+  );
   void flushOutbox(db).catch(() => undefined);
 }

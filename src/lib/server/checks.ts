@@ -6,12 +6,15 @@ import {
   artworks,
   audioFiles,
   checkRuns,
+  member,
   recordings,
   releaseProfiles,
   releases,
   tracks,
   user,
 } from '../db/schema';
+import { enqueueMail, flushOutbox } from '../mail/outbox';
+import { renderChecksFailedMail } from '../mail/templates';
 import {
   checkReleaseAgainstProfiles,
   summarizeVerdicts,
@@ -21,6 +24,7 @@ import { type NormalizationPreview, previewNormalization } from '../specs/normal
 import type { DeliveryProfile } from '../specs/schema';
 import type { Finding, MeasurementsByTrack, ReleaseForCheck } from '../specs/types';
 import { recordAudit } from './audit';
+import { getEnv } from './env';
 import { ApiError } from './errors';
 import { resolveProfiles } from './profiles';
 import type { Actor } from './route';
@@ -219,12 +223,26 @@ function toReport(
 }
 
 /** Runs every target profile's checks over the release and records the run. */
+/** Runs every target profile's checks over the release and records the run. */
 export async function runChecks(
   db: Database,
   actor: Actor,
   releaseId: string,
 ): Promise<CheckReport> {
-  const inputs = await loadCheckInputs(db, actor.organizationId, releaseId);
+  return recordCheckRun(db, actor.organizationId, releaseId, {
+    id: actor.userId,
+    name: actor.userName,
+  });
+}
+
+/** Runs and records the checks; `ranBy` null means Quayside ran them (after an upload). */
+async function recordCheckRun(
+  db: Database,
+  organizationId: string,
+  releaseId: string,
+  ranBy: { id: string; name: string } | null,
+): Promise<CheckReport> {
+  const inputs = await loadCheckInputs(db, organizationId, releaseId);
   if (inputs.profiles.length === 0) {
     throw new ApiError('conflict', 'Choose at least one target profile before running the checks.');
   }
@@ -242,13 +260,13 @@ export async function runChecks(
     releaseVersion: inputs.releaseVersion,
     findings,
     summary,
-    ranBy: actor.userId,
+    ranBy: ranBy?.id ?? null,
     createdAt,
   });
   await recordAudit(db, {
-    organizationId: actor.organizationId,
+    organizationId,
     releaseId,
-    actorId: actor.userId,
+    actorId: ranBy?.id ?? null,
     action: 'checks.run',
     after: {
       failures: summary.failures,
@@ -262,11 +280,63 @@ export async function runChecks(
       id,
       createdAt: createdAt.toISOString(),
       releaseVersion: inputs.releaseVersion,
-      ranBy: actor.userName,
+      ranBy: ranBy?.name ?? 'Quayside (after an upload)',
     },
     findings,
     summary,
   );
+}
+
+/**
+ * After a new master of `recordingId` is analysed: re-runs the checks of every open release
+ * that plays it, and e-mails the label's engineers and coordinators when a run fails.
+ */
+export async function rerunChecksAfterUpload(db: Database, recordingId: string): Promise<void> {
+  const rows = await db
+    .select({
+      releaseId: releases.id,
+      organizationId: releases.organizationId,
+      title: releases.title,
+      state: releases.state,
+    })
+    .from(tracks)
+    .innerJoin(releases, eq(releases.id, tracks.releaseId))
+    .where(eq(tracks.recordingId, recordingId));
+  for (const row of rows) {
+    if (!['draft', 'in_review', 'returned'].includes(row.state)) continue;
+    const profileCount = await db
+      .select({ id: releaseProfiles.profileId })
+      .from(releaseProfiles)
+      .where(eq(releaseProfiles.releaseId, row.releaseId));
+    if (profileCount.length === 0) continue;
+    const report = await recordCheckRun(db, row.organizationId, row.releaseId, null);
+    if (report.summary.failures === 0) continue;
+    const people = await db
+      .select({ email: user.email })
+      .from(member)
+      .innerJoin(user, eq(user.id, member.userId))
+      .where(
+        and(
+          eq(member.organizationId, row.organizationId),
+          inArray(member.role, ['engineer', 'coordinator']),
+        ),
+      );
+    const releaseUrl = new URL(`/releases/${row.releaseId}`, getEnv().BETTER_AUTH_URL).toString();
+    await enqueueMail(
+      db,
+      row.organizationId,
+      people.map((p) =>
+        renderChecksFailedMail({
+          to: p.email,
+          releaseTitle: row.title,
+          failures: report.summary.failures,
+          warnings: report.summary.warnings,
+          releaseUrl,
+        }),
+      ),
+    );
+    void flushOutbox(db).catch(() => undefined);
+  }
 }
 
 /** The latest recorded run, marked stale when anything it read has changed since. */
@@ -292,7 +362,7 @@ export async function latestCheckReport(
       id: row.run.id,
       createdAt: row.run.createdAt.toISOString(),
       releaseVersion: row.run.releaseVersion,
-      ranBy: row.ranBy,
+      ranBy: row.run.ranBy === null ? 'Quayside (after an upload)' : row.ranBy,
     },
     row.run.findings as Finding[],
     row.run.summary as CheckSummary,

@@ -12,6 +12,7 @@ import { analyzeStream, isAudioAnalysisError } from '../../audio';
 import type { Database } from '../../db/client';
 import { audioFiles, uploads } from '../../db/schema';
 import { getS3 } from '../../storage/s3';
+import { rerunChecksAfterUpload } from '../checks';
 
 // Two analyses at once: the engine's pool has min(2, cores) threads and a stream uses one.
 const MAX_CONCURRENT = 2;
@@ -113,7 +114,11 @@ async function runAnalysis(audioFileId: string): Promise<void> {
   const db = database;
   if (!db) return;
   const [row] = await db
-    .select({ objectKey: audioFiles.objectKey, sizeBytes: audioFiles.sizeBytes })
+    .select({
+      objectKey: audioFiles.objectKey,
+      sizeBytes: audioFiles.sizeBytes,
+      recordingId: audioFiles.recordingId,
+    })
     .from(audioFiles)
     .where(eq(audioFiles.id, audioFileId))
     .limit(1);
@@ -150,6 +155,9 @@ async function runAnalysis(audioFileId: string): Promise<void> {
         durationSamples: measurements.format.durationSamples,
       })
       .where(eq(audioFiles.id, audioFileId));
+    await rerunChecksAfterUpload(db, row.recordingId).catch((error: unknown) =>
+      console.error('[analysis] checks after upload failed', audioFileId, error),
+    );
   } catch (error) {
     await db
       .update(audioFiles)
