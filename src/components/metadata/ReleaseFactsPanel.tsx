@@ -1,7 +1,8 @@
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
+import { profileListSchema } from '@/lib/api/checks-schemas';
 import { formatDate, formatDuration } from '@/lib/api/format';
 import {
   type ReleaseFields,
@@ -141,6 +142,12 @@ function changedFields(before: ReleaseDetail, after: ReleaseDetail): string[] {
 function ReleaseForm({ release, onClose }: { release: ReleaseDetail; onClose: () => void }) {
   const hydrated = useHydrated();
   const client = useQueryClient();
+  // Built-in profiles at once; the label's own ones join them when the list arrives.
+  const profileList = useQuery({
+    queryKey: ['profiles'],
+    queryFn: () => getJson('/api/profiles', profileListSchema),
+  });
+  const choices = profileList.data?.profiles.map((e) => e.profile) ?? BUILT_IN_PROFILES;
   // The release as it was when the form opened (or was last reloaded): its version is what we send.
   const [basis, setBasis] = useState(release);
   const [theirChanges, setTheirChanges] = useState<string[] | null>(null);
@@ -234,10 +241,11 @@ function ReleaseForm({ release, onClose }: { release: ReleaseDetail; onClose: ()
           Target profiles
         </legend>
         <p className="text-xs text-slate">
-          Built-in profiles; the label's own profiles will be listed here when they exist.
+          Built-in starting points and the label's own profiles (an admin makes them under
+          Profiles).
         </p>
         <div className="mt-2 grid gap-1 sm:grid-cols-2">
-          {BUILT_IN_PROFILES.map((p) => (
+          {choices.map((p) => (
             <label key={p.id} className="flex items-center gap-2 text-sm">
               <input type="checkbox" value={p.id} {...register('profileIds')} />
               {p.name}

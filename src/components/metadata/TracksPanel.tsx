@@ -31,6 +31,13 @@ import { isLockedState, lockedNotice } from './locking';
 import { TrackEditor } from './TrackEditor';
 import { useIsrcAllocation, useLayoutUpdate, useTrackPatch } from './track-api';
 
+const analysisWords = {
+  pending: '○ waiting to analyse',
+  running: '◐ analysing',
+  failed: '■ analysis failed',
+  done: '',
+} as const;
+
 /** The track list: order (drag or keyboard), titles, ISRCs, gaps; inline edits by role. */
 export function TracksPanel({ release: r, role }: PanelProps) {
   const locked = isLockedState(r.state);
@@ -364,11 +371,20 @@ function TrackRow({
         <td className="px-3 py-2 text-xs">
           {t.audio ? (
             <>
-              <div className="truncate">{t.audio.originalName}</div>
+              <a
+                className="block truncate underline-offset-2 hover:underline"
+                href={`/releases/${encodeURIComponent(r.id)}/tracks/${encodeURIComponent(t.id)}`}
+                title="Open the track: plots, measurements, versions, player"
+              >
+                {t.audio.originalName}
+              </a>
               <div className="figures text-slate">
                 {t.audio.sampleRateHz ? `${(t.audio.sampleRateHz / 1000).toFixed(1)} kHz` : '?'} ·{' '}
                 {t.audio.bitsPerSample ?? '?'}-bit ·{' '}
                 {t.audio.channels === 2 ? 'stereo' : `${t.audio.channels} ch`}
+                {t.audio.analysisState === 'done'
+                  ? ''
+                  : ` · ${analysisWords[t.audio.analysisState]}`}
               </div>
             </>
           ) : (

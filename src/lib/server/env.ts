@@ -26,6 +26,15 @@ const envSchema = z.object({
   S3_SECRET_ACCESS_KEY: z.string().default('S3RVER'),
   SMTP_URL: z.string().regex(/^smtps?:\/\//, 'SMTP_URL must look like smtp://host:port'),
   MAIL_FROM: z.string().default('Quayside <no-reply@quayside.test>'),
+  /**
+   * Largest master upload accepted, bytes. The default, 5 GiB, leaves room for a 4 GiB RF64
+   * master (24-bit/96 kHz stereo, about 2 h) plus its header and tag chunks.
+   */
+  QUAYSIDE_MAX_UPLOAD_BYTES: z.coerce
+    .number({ error: 'QUAYSIDE_MAX_UPLOAD_BYTES must be a number of bytes' })
+    .int()
+    .positive()
+    .default(5 * 1024 ** 3),
   /** HTTP address of our local mail fake; when set, the sent-mail page reads from it. */
   MAIL_FAKE_URL: z.url().optional(),
 });

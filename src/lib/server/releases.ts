@@ -10,7 +10,7 @@ import {
   releases,
   tracks,
 } from '../db/schema';
-import { findBuiltInProfile } from '../specs/profiles';
+import { profileNames } from './profiles';
 import type { Actor } from './route';
 
 /** Condition limiting releases to what `actor` may see: their organisation, and for
@@ -27,30 +27,28 @@ function sqlSharedWith(userId: string) {
 
 type ReleaseRow = typeof releases.$inferSelect;
 
-async function loadProfiles(db: Database, releaseIds: string[]) {
-  const byRelease = new Map<string, string[]>();
+/** Target profiles of each release, with names (built-in or the label's own). */
+async function loadProfiles(db: Database, organizationId: string, releaseIds: string[]) {
+  const byRelease = new Map<string, { id: string; name: string }[]>();
   if (releaseIds.length === 0) return byRelease;
   const rows = await db
     .select()
     .from(releaseProfiles)
     .where(inArray(releaseProfiles.releaseId, releaseIds))
     .orderBy(asc(releaseProfiles.profileId));
+  const names = await profileNames(db, organizationId, [...new Set(rows.map((r) => r.profileId))]);
   for (const row of rows) {
     const list = byRelease.get(row.releaseId) ?? [];
-    list.push(row.profileId);
+    // An id that no longer resolves is shown as it is.
+    list.push({ id: row.profileId, name: names.get(row.profileId) ?? row.profileId });
     byRelease.set(row.releaseId, list);
   }
   return byRelease;
 }
 
-/** A profile's display name; ids that no longer resolve are shown as they are. */
-function profileName(id: string): string {
-  return findBuiltInProfile(id)?.name ?? id;
-}
-
 function toSummary(
   row: ReleaseRow,
-  profileIds: string[],
+  profiles: { id: string; name: string }[],
   trackCount: number,
   totalDurationSeconds: number | null,
 ): ReleaseSummary {
@@ -63,7 +61,7 @@ function toSummary(
     upcEan: row.upcEan,
     releaseDate: row.releaseDate,
     state: row.state,
-    profiles: profileIds.map((id) => ({ id, name: profileName(id) })),
+    profiles,
     trackCount,
     totalDurationSeconds,
     updatedAt: row.updatedAt.toISOString(),
@@ -79,7 +77,7 @@ export async function listReleases(db: Database, actor: Actor): Promise<ReleaseS
     .where(visibleTo(actor))
     .orderBy(desc(releases.updatedAt), asc(releases.title));
   const ids = rows.map((r) => r.id);
-  const profiles = await loadProfiles(db, ids);
+  const profiles = await loadProfiles(db, actor.organizationId, ids);
   const counts = new Map<string, { count: number; seconds: number | null }>();
   if (ids.length > 0) {
     const trackRows = await loadTracks(db, ids);
@@ -109,7 +107,7 @@ export async function getRelease(
     .where(and(eq(releases.id, releaseId), visibleTo(actor)))
     .limit(1);
   if (!row) return null;
-  const profiles = await loadProfiles(db, [row.id]);
+  const profiles = await loadProfiles(db, actor.organizationId, [row.id]);
   const trackRows = await loadTracks(db, [row.id]);
   const seconds = trackRows.reduce<number | null>(
     (sum, t) =>

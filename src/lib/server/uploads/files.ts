@@ -99,12 +99,6 @@ export function titleFromFileName(displayName: string): string {
   return (title || withoutExtension.trim() || 'Untitled').slice(0, 200);
 }
 
-/**
- * Default largest upload: 5 GiB, room for a 4 GiB RF64 master (a 24-bit/96 kHz stereo file of
- * about 2 h) plus its header and tag chunks. Override with QUAYSIDE_MAX_UPLOAD_BYTES.
- */
-export const DEFAULT_MAX_UPLOAD_BYTES = 5 * 1024 ** 3;
-
 /** Bytes as a short human figure ("1.2 GB", "340 MB"), decimal units as file managers show. */
 export function formatBytes(bytes: number): string {
   if (bytes >= 1e9) return `${(bytes / 1e9).toFixed(1)} GB`;

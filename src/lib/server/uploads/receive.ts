@@ -12,11 +12,11 @@ import type { Database } from '../../db/client';
 import { audioFiles, recordings, releases, tracks, uploads } from '../../db/schema';
 import { deleteObject, getS3 } from '../../storage/s3';
 import { recordAudit } from '../audit';
+import { getEnv } from '../env';
 import { ApiError } from '../errors';
 import type { Actor } from '../route';
 import { enqueueAnalysis, markUploadActive } from './analysis-queue';
 import {
-  DEFAULT_MAX_UPLOAD_BYTES,
   formatBytes,
   SNIFF_BYTES,
   sanitizeDisplayName,
@@ -34,13 +34,7 @@ const PROGRESS_WRITE_MS = 1000;
 
 /** The configured largest upload in bytes (QUAYSIDE_MAX_UPLOAD_BYTES, default 5 GiB). */
 export function maxUploadBytes(): number {
-  const raw = process.env.QUAYSIDE_MAX_UPLOAD_BYTES;
-  if (!raw) return DEFAULT_MAX_UPLOAD_BYTES;
-  const value = Number(raw);
-  if (!Number.isSafeInteger(value) || value <= 0) {
-    throw new Error('QUAYSIDE_MAX_UPLOAD_BYTES must be a positive whole number of bytes');
-  }
-  return value;
+  return getEnv().QUAYSIDE_MAX_UPLOAD_BYTES;
 }
 
 const activeControllers = new Map<string, AbortController>();
