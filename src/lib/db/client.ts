@@ -7,7 +7,8 @@ export type Database = ReturnType<typeof createDatabase>;
 
 /** Opens the database named by `url` (file:, libsql:, http:) with our schema attached. */
 export function createDatabase(url: string, authToken?: string) {
-  const client = createClient({ url, authToken });
+  // Wait for a writer in another process (a second server, a test) rather than fail at once.
+  const client = createClient({ url, authToken, timeout: 10_000 });
   return drizzle(client, { schema });
 }
 
