@@ -20,6 +20,12 @@ function when(iso: string): string {
   return `${iso.replace('T', ' ').slice(0, 16)} UTC`;
 }
 
+const lockedWords: Record<string, string> = {
+  approved: 'approved and locked; the package is being built',
+  packaged: 'approved and locked; the package is ready',
+  delivered: 'delivered and acknowledged',
+};
+
 function SignoffLine({
   label,
   signoff,
@@ -123,6 +129,7 @@ export function ProgressPanel({ release }: PanelProps) {
   const blockersCount =
     s.blockers.failures + s.blockers.unwaivedWarnings.length + s.blockers.missing.length;
   const activeWaivers = s.waivers.filter((w) => w.active).length;
+  const open = s.state === 'in_review' || s.state === 'draft' || s.state === 'returned';
 
   return (
     <div className="rounded-lg border border-mist bg-white p-4" data-testid="progress-panel">
@@ -132,11 +139,11 @@ export function ProgressPanel({ release }: PanelProps) {
           : 'Checks not run yet'}
         {s.checks.stale && ' · checks out of date'}
         {' · '}
-        {s.approvable
-          ? 'ready to approve'
-          : s.state === 'in_review' || s.state === 'draft' || s.state === 'returned'
-            ? `${blockersCount} thing${blockersCount === 1 ? '' : 's'} to settle before approval`
-            : ''}
+        {!open
+          ? lockedWords[s.state]
+          : s.approvable
+            ? 'ready to approve'
+            : `${blockersCount} thing${blockersCount === 1 ? '' : 's'} to settle before approval`}
       </p>
       <ul className="mt-2 space-y-0.5 text-sm">
         <SignoffLine label="Audio" signoff={s.signoffs.audio} />
