@@ -2,9 +2,8 @@
  * A server killed while it builds a package leaves no package object and no 'ready' row;
  * the next server marks the build failed, and building it again gives a valid bag.
  */
-import { type ChildProcess, execFileSync, spawn } from 'node:child_process';
+import { execFileSync } from 'node:child_process';
 import { mkdtemp, rm, writeFile } from 'node:fs/promises';
-import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { GetObjectCommand, HeadObjectCommand } from '@aws-sdk/client-s3';
@@ -17,6 +16,11 @@ import { createS3Client } from '@/lib/storage/s3';
 import { checkBagRules } from '../support/bagit';
 import { demoEmails, signedIn } from '../support/http';
 import { cleanTone, createFixtureRelease } from '../support/release-fixtures';
+import {
+  killAllServerProcesses,
+  killServerProcess,
+  startServerProcess,
+} from '../support/server-process';
 import { ensureProgram } from '../support/system-packages';
 
 const db = createDatabase(inject('databaseUrl'));
@@ -29,37 +33,7 @@ const s3 = createS3Client({
   secretAccessKey: 'S3RVER',
 });
 const releaseId = 'rel-crash';
-const children: ChildProcess[] = [];
 let dir: string;
-
-function freePort(): Promise<number> {
-  return new Promise((resolve) => {
-    const probe = createServer();
-    probe.listen(0, '127.0.0.1', () => {
-      const address = probe.address();
-      probe.close(() => resolve(typeof address === 'object' && address ? address.port : 0));
-    });
-  });
-}
-
-/** Starts the built app in a separate process with the test server's environment. */
-async function startServerProcess(): Promise<{ child: ChildProcess; url: string }> {
-  const port = await freePort();
-  const url = `http://localhost:${port}`;
-  const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/serve.ts'], {
-    env: { ...process.env, ...inject('serverEnv'), PORT: String(port), BETTER_AUTH_URL: url },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
-  children.push(child);
-  for (let i = 0; i < 100; i++) {
-    const ok = await fetch(`${url}/sign-in`)
-      .then((r) => r.ok)
-      .catch(() => false);
-    if (ok) return { child, url };
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  throw new Error('the second server did not start');
-}
 
 async function packageRow() {
   const [row] = await db.select().from(packages).where(eq(packages.releaseId, releaseId));
@@ -85,7 +59,7 @@ beforeAll(async () => {
 }, 120_000);
 
 afterAll(async () => {
-  for (const child of children) child.kill('SIGKILL');
+  await killAllServerProcesses();
   await rm(dir, { recursive: true, force: true });
 });
 
@@ -105,8 +79,7 @@ describe('a server killed mid-package', () => {
       version: signed.version,
     });
     expect(approved.status).toBe(200);
-    first.child.kill('SIGKILL');
-    await new Promise((r) => first.child.once('exit', r));
+    await killServerProcess(first.child);
 
     const interrupted = await packageRow();
     expect(interrupted?.state).toBe('building');

@@ -1,7 +1,8 @@
 /** A new master re-runs the release's checks by itself, and a failing run is e-mailed. */
-import { afterAll, describe, expect, inject, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import { checkReportSchema } from '@/lib/api/checks-schemas';
 import { demoEmails } from '../support/http';
+import { waitForMail } from '../support/mail';
 import {
   createFixtureRelease,
   removeFixtureRelease,
@@ -15,19 +16,6 @@ const releaseId = 'rel-upload-checks';
 afterAll(async () => {
   await removeFixtureRelease(releaseId);
 });
-
-async function mailTo(address: string, subject: RegExp) {
-  for (let i = 0; i < 50; i++) {
-    const answer = await fetch(new URL('/messages', inject('mailUrl')));
-    const { messages } = (await answer.json()) as {
-      messages: { to: string[]; subject: string; text: string }[];
-    };
-    const found = messages.filter((m) => m.to.includes(address) && subject.test(m.subject));
-    if (found.length) return found;
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  return [];
-}
 
 describe('checks after an upload', () => {
   it('a 48 kHz master uploaded to a CD release fails the checks at once and the label is told', async () => {
@@ -58,7 +46,7 @@ describe('checks after an upload', () => {
     expect([failure?.severity, failure?.measured]).toEqual(['failure', 48_000]);
 
     for (const address of [demoEmails.engineer, demoEmails.coordinator]) {
-      const [mail] = await mailTo(
+      const [mail] = await waitForMail(
         address,
         new RegExp(`^Checks failed: Upload fixture ${releaseId}$`),
       );

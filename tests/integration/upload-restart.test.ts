@@ -3,15 +3,18 @@
  * no file and no current-version change, and the next server marks that upload failed; an
  * analysis left 'running' by a dead server is picked up and finished by the next one.
  */
-import { type ChildProcess, spawn } from 'node:child_process';
 import { request as httpRequest } from 'node:http';
-import { createServer } from 'node:net';
 import { HeadObjectCommand } from '@aws-sdk/client-s3';
 import { eq } from 'drizzle-orm';
-import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { uploadResultSchema } from '@/lib/api/schemas';
 import { audioFiles, uploads } from '@/lib/db/schema';
 import { demoEmails } from '../support/http';
+import {
+  killAllServerProcesses,
+  killServerProcess,
+  startServerProcess,
+} from '../support/server-process';
 import {
   createFixtureRelease,
   db,
@@ -27,44 +30,6 @@ import {
 } from './upload-support';
 
 const releaseId = 'rel-upload-restart';
-const children: ChildProcess[] = [];
-
-function freePort(): Promise<number> {
-  return new Promise((resolve) => {
-    const probe = createServer();
-    probe.listen(0, '127.0.0.1', () => {
-      const address = probe.address();
-      probe.close(() => resolve(typeof address === 'object' && address ? address.port : 0));
-    });
-  });
-}
-
-/** The built app in a separate process, with the test server's environment. */
-async function startServerProcess(): Promise<{ child: ChildProcess; url: string }> {
-  const port = await freePort();
-  const url = `http://localhost:${port}`;
-  const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/serve.ts'], {
-    env: { ...process.env, ...inject('serverEnv'), PORT: String(port), BETTER_AUTH_URL: url },
-    stdio: ['ignore', 'ignore', 'ignore'],
-  });
-  children.push(child);
-  for (let i = 0; i < 150; i++) {
-    const ok = await fetch(`${url}/sign-in`)
-      .then((r) => r.ok)
-      .catch(() => false);
-    if (ok) return { child, url };
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  throw new Error('the second server did not start');
-}
-
-function kill(child: ChildProcess): Promise<void> {
-  return new Promise((resolve) => {
-    if (child.exitCode !== null || child.signalCode !== null) return resolve();
-    child.once('exit', () => resolve());
-    child.kill('SIGKILL');
-  });
-}
 
 let trackId = '';
 let originalFileId = '';
@@ -82,7 +47,7 @@ beforeAll(async () => {
 });
 
 afterAll(async () => {
-  for (const child of children) await kill(child);
+  await killAllServerProcesses();
   await removeFixtureRelease(releaseId);
 });
 
@@ -127,7 +92,7 @@ describe('a server restart', () => {
       .toBe(1);
     // Let the first parts reach storage, so a multipart upload is under way when it dies.
     await new Promise((r) => setTimeout(r, 1500));
-    await kill(first.child);
+    await killServerProcess(first.child);
     req.destroy();
     const [stale] = await db.select().from(uploads).where(eq(uploads.id, uploadId));
     expect(stale?.state).toBe('receiving');
@@ -144,7 +109,7 @@ describe('a server restart', () => {
     await expect(
       s3.client.send(new HeadObjectCommand({ Bucket: s3.bucket, Key: row?.objectKey })),
     ).rejects.toThrow();
-    await kill(second.child);
+    await killServerProcess(second.child);
   });
 
   it("an analysis a dead server left 'running' is finished by the next server", async () => {
@@ -160,6 +125,6 @@ describe('a server restart', () => {
     expect(
       (row?.measurements as { format: { durationSeconds: number } } | null)?.format.durationSeconds,
     ).toBeCloseTo(2, 6);
-    await kill(server.child);
+    await killServerProcess(server.child);
   });
 });

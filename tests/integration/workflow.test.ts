@@ -23,6 +23,7 @@ import { audioFiles, packageDownloads, packages } from '@/lib/db/schema';
 import { createS3Client, presignGetUrl } from '@/lib/storage/s3';
 import { checkBagRules } from '../support/bagit';
 import { type Client, demoEmails, signedIn } from '../support/http';
+import { waitForMail } from '../support/mail';
 import { cleanTone, createFixtureRelease } from '../support/release-fixtures';
 import { ensureProgram } from '../support/system-packages';
 import type { WavSpec } from '../support/wav-stream';
@@ -106,24 +107,6 @@ async function waitForPackage(version: number): Promise<WorkflowStatus> {
   throw new Error(`package version ${version} did not finish`);
 }
 
-interface Mail {
-  to: string[];
-  subject: string;
-  text: string;
-}
-/** Mail to `address` whose subject matches, waiting briefly: mail leaves through a queue. */
-async function mailTo(address: string, subject: RegExp): Promise<Mail[]> {
-  for (let i = 0; i < 50; i++) {
-    const answer = await fetch(new URL('/messages', inject('mailUrl')));
-    const found = ((await answer.json()) as { messages: Mail[] }).messages.filter(
-      (m) => m.to.includes(address) && subject.test(m.subject),
-    );
-    if (found.length > 0) return found;
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  return [];
-}
-
 async function verifyPackage(objectKey: string, expectedSha256: string) {
   const answer = await s3.client.send(new GetObjectCommand({ Bucket: bucket, Key: objectKey }));
   const bytes = Buffer.from(
@@ -203,9 +186,9 @@ describe('from checks to delivery', () => {
     expect(signed.status).toBe(200);
     const ready = workflowStatusSchema.parse(await signed.json());
     expect(ready.approvable).toBe(true);
-    expect(await mailTo(demoEmails.coordinator, /^Ready for approval: Harbour Flow$/)).toHaveLength(
-      1,
-    );
+    expect(
+      await waitForMail(demoEmails.coordinator, /^Ready for approval: Harbour Flow$/),
+    ).toHaveLength(1);
 
     const stale = await coordinator.post(`/api/releases/${releaseId}/approve`, {
       version: ready.version + 1,
@@ -277,7 +260,7 @@ describe('from checks to delivery', () => {
         .status,
     ).toBe(200);
 
-    const [mail] = await mailTo(demoEmails.distributor, /^Package ready: Harbour Flow/);
+    const [mail] = await waitForMail(demoEmails.distributor, /^Package ready: Harbour Flow/);
     expect(mail?.text).toContain('/deliveries');
     expect(mail?.text).not.toContain('X-Amz-Signature');
 
@@ -392,7 +375,10 @@ describe('from checks to delivery', () => {
     });
     expect(returned.status).toBe(204);
     expect((await status()).state).toBe('returned');
-    const [mail] = await mailTo(demoEmails.coordinator, /^Returned by distributor: Harbour Flow$/);
+    const [mail] = await waitForMail(
+      demoEmails.coordinator,
+      /^Returned by distributor: Harbour Flow$/,
+    );
     expect(mail?.text).toContain('Track 2 title differs from the cover.');
 
     const history = (await (

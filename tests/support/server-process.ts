@@ -1,0 +1,52 @@
+/**
+ * A second server process running the built app with the test server's environment (same
+ * database, S3 and mail fakes), for tests that must stop a server abruptly.
+ */
+import { type ChildProcess, spawn } from 'node:child_process';
+import { createServer } from 'node:net';
+import { inject } from 'vitest';
+
+const started: ChildProcess[] = [];
+
+export function freePort(): Promise<number> {
+  return new Promise((resolve) => {
+    const probe = createServer();
+    probe.listen(0, '127.0.0.1', () => {
+      const address = probe.address();
+      probe.close(() => resolve(typeof address === 'object' && address ? address.port : 0));
+    });
+  });
+}
+
+/** Starts `scripts/serve.ts` in its own process (tsx as a loader, so a kill reaches it). */
+export async function startServerProcess(): Promise<{ child: ChildProcess; url: string }> {
+  const port = await freePort();
+  const url = `http://localhost:${port}`;
+  const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/serve.ts'], {
+    env: { ...process.env, ...inject('serverEnv'), PORT: String(port), BETTER_AUTH_URL: url },
+    stdio: ['ignore', 'ignore', 'ignore'],
+  });
+  started.push(child);
+  for (let i = 0; i < 150; i++) {
+    const ok = await fetch(`${url}/sign-in`)
+      .then((r) => r.ok)
+      .catch(() => false);
+    if (ok) return { child, url };
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  throw new Error('the second server did not start');
+}
+
+/** Stops a server process at once, as a crash would. */
+export function killServerProcess(child: ChildProcess): Promise<void> {
+  return new Promise((resolve) => {
+    if (child.exitCode !== null || child.signalCode !== null) return resolve();
+    child.once('exit', () => resolve());
+    child.kill('SIGKILL');
+  });
+}
+
+/** Kills every server process this test file started (for afterAll). */
+export async function killAllServerProcesses(): Promise<void> {
+  await Promise.all(started.map(killServerProcess));
+}
