@@ -20,6 +20,7 @@ import {
   isrcRegistrants,
   member,
   organization,
+  packages,
   recordings,
   releaseProfiles,
   releaseShares,
@@ -27,6 +28,8 @@ import {
   tracks,
   user,
 } from '../src/lib/db/schema';
+import { runChecks } from '../src/lib/server/checks';
+import { startPackageBuild, waitForPackageBuilds } from '../src/lib/server/packaging';
 import { objectExists, putObject } from '../src/lib/storage/s3';
 import { type SynthSpec, synthesizeWav } from './synth';
 
@@ -208,6 +211,7 @@ export async function seedDemo(deps: {
     created = true;
   }
   const uploaded = await uploadMissingAudio(db, s3);
+  await packageApprovedDemoRelease(db);
   return { created, users: demoUsers, uploaded };
 }
 
@@ -261,8 +265,9 @@ async function createScenario(db: Database, auth: Auth): Promise<void> {
         releaseDate: r.releaseDate,
         genre: r.genre,
         language: 'en',
-        pLine: `℗ 2026 ${label.name}`,
-        cLine: `© 2026 ${label.name}`,
+        // Stored without the ℗/© sign, which the screens and documents add.
+        pLine: `2026 ${label.name}`,
+        cLine: `2026 ${label.name}`,
         state: r.state,
         updatedAt: new Date(Date.UTC(2026, 10, 20 + index)),
       });
@@ -383,4 +388,30 @@ async function uploadMissingAudio(
     }
   }
   return uploaded;
+}
+
+/**
+ * The approved demo release gets its checks run and its package built (as approving it in
+ * the product would), so the distributor has something to download on first start.
+ */
+async function packageApprovedDemoRelease(db: Database): Promise<void> {
+  const releaseId = 'rel-signal-hill';
+  const [existing] = await db
+    .select({ id: packages.id })
+    .from(packages)
+    .where(eq(packages.releaseId, releaseId))
+    .limit(1);
+  if (existing) return;
+  const coordinator = demoUsers.find((u) => u.role === 'coordinator');
+  const [row] = coordinator
+    ? await db.select({ id: user.id }).from(user).where(eq(user.email, coordinator.email)).limit(1)
+    : [];
+  if (!row || !coordinator) return;
+  await runChecks(
+    db,
+    { userId: row.id, userName: coordinator.name, organizationId: label.id, role: 'coordinator' },
+    releaseId,
+  );
+  await startPackageBuild(db, { releaseId, organizationId: label.id, createdBy: row.id });
+  await waitForPackageBuilds();
 }
