@@ -88,6 +88,26 @@ describe('approval journey', () => {
     await warning.getByTestId('waiver').waitFor();
     expect(await warning.getByTestId('waiver').textContent()).toContain('Waived by Eli Stroud');
 
+    // The finding's time opens the track page, which plays from there behind the caution.
+    const at = warning.locator('a[href*="/tracks/"]');
+    const seconds = Number(
+      new URL((await at.getAttribute('href')) ?? '', 'http://x').searchParams.get('t'),
+    );
+    expect(seconds).toBeGreaterThan(0);
+    await at.click();
+    await page
+      .getByTestId('finding-position')
+      .getByRole('button', { name: 'Play from there' })
+      .click();
+    await page.getByRole('button', { name: 'I have turned the level down' }).click();
+    await expect
+      .poll(() => page.getByTestId('player').evaluate((a: HTMLAudioElement) => a.currentTime), {
+        timeout: 15_000,
+      })
+      .toBeGreaterThanOrEqual(seconds - 0.05);
+    await shot(page, '1b-engineer-track');
+    await page.goto(`/releases/${releaseId}`);
+
     await page.getByRole('button', { name: 'Sign off audio' }).click();
     await expect
       .poll(() => page.getByTestId('signoff-audio').textContent())

@@ -1,5 +1,5 @@
 /**
- * One large master streamed through the real server into the S3 fake. The file (300 MB by
+ * One large master streamed through the real server into the S3 fake. The file (over 1 GB by
  * default; UPLOAD_LARGE_TEST_BYTES overrides it) is generated as it is sent and never exists
  * on disk or in memory whole. The server runs inside the vitest main process (the global
  * setup), which is this test worker's parent, so its resident memory is read from /proc.
@@ -26,7 +26,7 @@ import {
   wavHeader,
 } from './upload-support';
 
-const totalBytes = Number(process.env.UPLOAD_LARGE_TEST_BYTES ?? 300_000_000);
+const totalBytes = Number(process.env.UPLOAD_LARGE_TEST_BYTES ?? 1_100_000_000);
 const sampleRateHz = 48_000;
 const frameBytes = 6; // 24-bit stereo
 const dataBytes = Math.floor((totalBytes - 44) / frameBytes) * frameBytes;

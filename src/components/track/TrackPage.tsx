@@ -34,8 +34,29 @@ function Analysed({ detail }: { detail: TrackDetail }) {
   );
   if (!m || !detail.current) return null;
   const seek = (seconds: number) => player.current?.playFrom(seconds);
+  // A finding's link carries its time position (?t=seconds); offer to play from there.
+  const requested = Number(new URLSearchParams(window.location.search).get('t'));
+  const startAt =
+    Number.isFinite(requested) && requested > 0 && requested <= m.format.durationSeconds
+      ? requested
+      : null;
   return (
     <>
+      {startAt !== null && (
+        <p
+          className="mt-6 rounded-lg border border-mist bg-white p-3 text-sm"
+          data-testid="finding-position"
+        >
+          You came from a finding at <span className="figures">{formatTime(startAt)}</span>.{' '}
+          <button
+            type="button"
+            className="font-medium text-buoy underline"
+            onClick={() => seek(startAt)}
+          >
+            Play from there
+          </button>
+        </p>
+      )}
       <Section id="waveform" title="Waveform and findings">
         <WaveformBlock detail={detail} markers={markers} position={position} onSeek={seek} />
         {markers.length > 0 ? (
