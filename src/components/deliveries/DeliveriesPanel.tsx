@@ -1,5 +1,6 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
+import { formatBytes } from '@/lib/api/format';
 import {
   type Delivery,
   deliveriesResponseSchema,
@@ -8,13 +9,6 @@ import {
 import { ApiRequestError, getJson, sendJson } from '../api-client';
 import { QueryProvider } from '../QueryProvider';
 import { ReleaseStateBadge } from '../ReleaseStateBadge';
-
-function formatBytes(bytes: number | null): string {
-  if (bytes === null) return '–';
-  return bytes >= 1024 * 1024
-    ? `${(bytes / 1024 / 1024).toFixed(1)} MiB`
-    : `${(bytes / 1024).toFixed(1)} KiB`;
-}
 
 async function post(url: string, body: unknown): Promise<void> {
   const response = await fetch(url, {

@@ -1,6 +1,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
 import { z } from 'zod';
+import { formatBytes } from '@/lib/api/format';
 import { type WorkflowStatus, workflowStatusSchema } from '@/lib/api/workflow-schemas';
 import { ApiRequestError, getJson } from '../api-client';
 import {
@@ -9,12 +10,6 @@ import {
   releaseQueryKey,
   workflowQueryKey,
 } from './workspace-types';
-
-function formatBytes(bytes: number | null): string {
-  if (bytes === null) return '–';
-  if (bytes >= 1024 * 1024) return `${(bytes / 1024 / 1024).toFixed(1)} MiB`;
-  return `${(bytes / 1024).toFixed(1)} KiB`;
-}
 
 function when(iso: string): string {
   return `${iso.replace('T', ' ').slice(0, 16)} UTC`;

@@ -1,5 +1,4 @@
 import { useQuery } from '@tanstack/react-query';
-import type { ReactNode } from 'react';
 import { releaseDetailSchema } from '@/lib/api/schemas';
 import { can, type Role } from '@/lib/auth/permissions';
 import { ApiRequestError, getJson } from '../api-client';
@@ -8,22 +7,12 @@ import { ReleaseFactsPanel } from '../metadata/ReleaseFactsPanel';
 import { TracksPanel } from '../metadata/TracksPanel';
 import { QueryProvider } from '../QueryProvider';
 import { ReleaseStateBadge } from '../ReleaseStateBadge';
+import { Section } from '../Section';
 import { UploadPanel } from '../upload/UploadPanel';
 import { HistoryPanel } from './HistoryPanel';
 import { ProgressPanel } from './ProgressPanel';
 import { RunningOrder } from './RunningOrder';
 import { releaseQueryKey } from './workspace-types';
-
-function Section({ id, title, children }: { id: string; title: string; children: ReactNode }) {
-  return (
-    <section aria-labelledby={id} className="mt-8">
-      <h2 id={id} className="mb-2 text-sm font-semibold uppercase tracking-wide text-slate">
-        {title}
-      </h2>
-      {children}
-    </section>
-  );
-}
 
 function Workspace({ releaseId, role }: { releaseId: string; role: Role }) {
   const query = useQuery({

@@ -1,9 +1,10 @@
 import { useQuery } from '@tanstack/react-query';
-import { type ReactNode, useMemo, useRef, useState } from 'react';
+import { useMemo, useRef, useState } from 'react';
 import { formatIsrcForDisplay } from '@/lib/api/format';
 import { type TrackDetail, trackDetailSchema } from '@/lib/api/schemas';
 import { ApiRequestError, getJson } from '../api-client';
 import { QueryProvider } from '../QueryProvider';
+import { Section } from '../Section';
 import { AnalysisStateText } from '../upload/AnalysisStateText';
 import { formatBytes } from '../upload/upload-client';
 import { LoudnessChart } from './LoudnessChart';
@@ -12,17 +13,6 @@ import { collectMarkers, formatTime, markerShapes } from './markers';
 import { Player, type PlayerHandle } from './Player';
 import { VersionList } from './VersionList';
 import { WaveformOverview } from './WaveformOverview';
-
-function Section({ id, title, children }: { id: string; title: string; children: ReactNode }) {
-  return (
-    <section aria-labelledby={id} className="mt-8">
-      <h2 id={id} className="mb-2 text-sm font-semibold uppercase tracking-wide text-slate">
-        {title}
-      </h2>
-      {children}
-    </section>
-  );
-}
 
 function Analysed({ detail }: { detail: TrackDetail }) {
   const m = detail.measurements;

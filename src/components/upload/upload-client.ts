@@ -1,12 +1,7 @@
 /** Browser side of an upload: a quick look at the file, then one streamed XHR with progress. */
 import { type UploadResult, uploadResultSchema } from '@/lib/api/schemas';
 
-export function formatBytes(bytes: number): string {
-  if (bytes >= 1e9) return `${(bytes / 1e9).toFixed(2)} GB`;
-  if (bytes >= 1e6) return `${(bytes / 1e6).toFixed(1)} MB`;
-  if (bytes >= 1e3) return `${(bytes / 1e3).toFixed(0)} kB`;
-  return `${bytes} bytes`;
-}
+export { formatBytes } from '@/lib/api/format';
 
 /** The title a new track would get (the server decides; this mirrors it for the list). */
 export function guessTitle(fileName: string): string {

@@ -28,3 +28,12 @@ export function formatDate(iso: string | null): string {
   if (Number.isNaN(d.getTime())) return iso;
   return d.toISOString().slice(0, 10);
 }
+
+/** Bytes as a short figure in decimal units, as file managers show ("1.2 GB", "340 MB"). */
+export function formatBytes(bytes: number | null | undefined): string {
+  if (bytes == null) return '–';
+  if (bytes >= 1e9) return `${(bytes / 1e9).toFixed(2)} GB`;
+  if (bytes >= 1e6) return `${(bytes / 1e6).toFixed(1)} MB`;
+  if (bytes >= 1e3) return `${(bytes / 1e3).toFixed(0)} kB`;
+  return `${bytes} bytes`;
+}

@@ -4,6 +4,8 @@
  * route share one definition.
  */
 
+export { formatBytes } from '../../api/format';
+
 /** The containers we store, from their magic numbers (RIFF/RF64/BW64 WAVE, FORM AIFF/AIFC). */
 export type MasterContainer = 'wav' | 'rf64' | 'bw64' | 'aiff' | 'aifc';
 
@@ -97,12 +99,4 @@ export function titleFromFileName(displayName: string): string {
     .replace(/\s+/g, ' ')
     .trim();
   return (title || withoutExtension.trim() || 'Untitled').slice(0, 200);
-}
-
-/** Bytes as a short human figure ("1.2 GB", "340 MB"), decimal units as file managers show. */
-export function formatBytes(bytes: number): string {
-  if (bytes >= 1e9) return `${(bytes / 1e9).toFixed(1)} GB`;
-  if (bytes >= 1e6) return `${(bytes / 1e6).toFixed(1)} MB`;
-  if (bytes >= 1e3) return `${(bytes / 1e3).toFixed(0)} kB`;
-  return `${bytes} bytes`;
 }
