@@ -87,6 +87,12 @@ describe('approval journey', () => {
     await warning.getByRole('button', { name: 'Waive warning' }).click();
     await warning.getByTestId('waiver').waitFor();
     expect(await warning.getByTestId('waiver').textContent()).toContain('Waived by Eli Stroud');
+    // The grid counts a waived warning as settled, and says so.
+    const cell = page.getByRole('button', {
+      name: /^2\. High Water Mark, Compact Disc production master:/,
+    });
+    await expect.poll(() => cell.getAttribute('data-verdict')).toBe('pass');
+    expect(await cell.textContent()).toContain('1 waived');
 
     // The finding's time opens the track page, which plays from there behind the caution.
     const at = warning.locator('a[href*="/tracks/"]');

@@ -7,8 +7,10 @@ import {
 } from '@/lib/api/checks-schemas';
 import { type WorkflowStatus, workflowStatusSchema } from '@/lib/api/workflow-schemas';
 import { can } from '@/lib/auth/permissions';
+import { summarizeVerdicts } from '@/lib/specs/check-release';
 import { RULE_TITLES } from '@/lib/specs/rule-titles';
 import type { RuleId } from '@/lib/specs/schema';
+import type { Finding } from '@/lib/specs/types';
 import { getJson, sendJson } from '../api-client';
 import { checksQueryKey, type PanelProps, workflowQueryKey } from '../release/workspace-types';
 import { NormalizationPreview } from './NormalizationPreview';
@@ -56,14 +58,23 @@ interface Filters {
 
 function VerdictGrid({
   report,
+  waivedKeys,
   onPick,
 }: {
   report: CheckReportView;
+  /** Warnings waived with a reason still in force: they count as settled in the grid. */
+  waivedKeys: ReadonlySet<string>;
   onPick: (trackId: string, profileId: string) => void;
 }) {
-  const cell = new Map(
-    report.verdicts.map((v) => [`${v.profileId}|${v.trackId ?? RELEASE_ROW}`, v]),
-  );
+  const verdicts = summarizeVerdicts(report.findings as Finding[], waivedKeys);
+  const cell = new Map(verdicts.map((v) => [`${v.profileId}|${v.trackId ?? RELEASE_ROW}`, v]));
+  const waivedIn = (profileId: string, trackId: string) =>
+    report.findings.filter(
+      (f) =>
+        f.profileId === profileId &&
+        (f.trackId ?? RELEASE_ROW) === trackId &&
+        waivedKeys.has(f.key),
+    ).length;
   const rows = [
     ...report.tracks.map((t) => ({ id: t.id, label: `${t.position}. ${t.title}` })),
     { id: RELEASE_ROW, label: 'Whole release' },
@@ -98,9 +109,11 @@ function VerdictGrid({
                     </td>
                   );
                 }
+                const waived = waivedIn(p.id, row.id);
                 const counts = [
                   v.failures ? `${v.failures} failure${v.failures > 1 ? 's' : ''}` : '',
                   v.warnings ? `${v.warnings} warning${v.warnings > 1 ? 's' : ''}` : '',
+                  waived ? `${waived} waived` : '',
                 ]
                   .filter(Boolean)
                   .join(', ');
@@ -519,6 +532,9 @@ export function ChecksPanel({ release, role }: PanelProps) {
           <div className="mt-4">
             <VerdictGrid
               report={report}
+              waivedKeys={
+                new Set(workflow.data?.waivers.filter((w) => w.active).map((w) => w.findingKey))
+              }
               onPick={(trackId, profileId) => setFilters({ severity: 'all', trackId, profileId })}
             />
           </div>
