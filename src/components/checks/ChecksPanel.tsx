@@ -11,6 +11,7 @@ import { summarizeVerdicts } from '@/lib/specs/check-release';
 import { RULE_TITLES } from '@/lib/specs/rule-titles';
 import type { RuleId } from '@/lib/specs/schema';
 import type { Finding } from '@/lib/specs/types';
+import { isEditable } from '@/lib/workflow/transitions';
 import { getJson, sendJson } from '../api-client';
 import { checksQueryKey, type PanelProps, workflowQueryKey } from '../release/workspace-types';
 import { NormalizationPreview } from './NormalizationPreview';
@@ -272,7 +273,7 @@ function FindingRow({
   workflow: WorkflowStatus | undefined;
 }) {
   const waiver = workflow?.waivers.find((w) => w.findingKey === finding.key);
-  const editable = workflow ? ['draft', 'in_review', 'returned'].includes(workflow.state) : false;
+  const editable = workflow ? isEditable(workflow.state) : false;
   const mayWaive =
     editable &&
     (metadataRuleIds.has(finding.ruleId)

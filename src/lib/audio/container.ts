@@ -172,6 +172,33 @@ interface ChunkWalkState {
 }
 
 /**
+ * A reader for the chunks after the audio data (tags some writers put at the end), started
+ * where the walk stopped; at most 10 000 chunks, so a damaged file cannot loop forever.
+ */
+function trailingChunkReader(options: {
+  source: ByteSource;
+  position: number;
+  end: number;
+  previousWasOdd: boolean;
+  littleEndian: boolean;
+  visit: (id: string, size: number, bodyOffset: number) => Promise<void>;
+  finish: () => void;
+}): () => Promise<void> {
+  return async () => {
+    const trailing: ChunkWalkState = { position: options.position, end: options.end };
+    let odd = options.previousWasOdd;
+    for (let count = 0; count < 10_000; count++) {
+      const chunk = await readChunkHeader(options.source, trailing, options.littleEndian, odd);
+      if (chunk === null) break;
+      await options.visit(chunk.id, chunk.size, chunk.bodyOffset);
+      trailing.position = chunk.bodyOffset + chunk.size + (chunk.size % 2);
+      odd = chunk.size % 2 === 1;
+    }
+    options.finish();
+  };
+}
+
+/**
  * Next chunk header at state.position, tolerating writers that leave out the pad byte after an
  * odd-sized chunk. Returns null at the end or when the bytes there are not a chunk header.
  */
@@ -268,19 +295,15 @@ async function parseWave(source: ByteSource, magic: string): Promise<ParsedConta
     previousWasOdd = size % 2 === 1;
   }
 
-  const trailingStart = { position: state.position, previousWasOdd };
-  const readTrailingChunks = async (): Promise<void> => {
-    const trailing: ChunkWalkState = { position: trailingStart.position, end: fileEnd };
-    let odd = trailingStart.previousWasOdd;
-    for (let count = 0; count < 10_000; count++) {
-      const chunk = await readChunkHeader(source, trailing, true, odd);
-      if (chunk === null) break;
-      await visit(chunk.id, chunk.size, chunk.bodyOffset);
-      trailing.position = chunk.bodyOffset + chunk.size + (chunk.size % 2);
-      odd = chunk.size % 2 === 1;
-    }
-    finishTags(tags, text);
-  };
+  const readTrailingChunks = trailingChunkReader({
+    source,
+    position: state.position,
+    end: fileEnd,
+    previousWasOdd,
+    littleEndian: true,
+    visit,
+    finish: () => finishTags(tags, text),
+  });
 
   if (fmt === null && data !== null && source.randomAccess) {
     // Some writers put fmt after data; files can look ahead for it.
@@ -527,19 +550,15 @@ async function parseAiff(source: ByteSource, form: string): Promise<ParsedContai
     state.position = chunk.bodyOffset + chunk.size + (chunk.size % 2);
     previousWasOdd = chunk.size % 2 === 1;
   }
-  const trailingStart = { position: state.position, previousWasOdd };
-  const readTrailingChunks = async (): Promise<void> => {
-    const trailing: ChunkWalkState = { position: trailingStart.position, end: fileEnd };
-    let odd = trailingStart.previousWasOdd;
-    for (let count = 0; count < 10_000; count++) {
-      const chunk = await readChunkHeader(source, trailing, false, odd);
-      if (chunk === null) break;
-      await visit(chunk.id, chunk.size, chunk.bodyOffset);
-      trailing.position = chunk.bodyOffset + chunk.size + (chunk.size % 2);
-      odd = chunk.size % 2 === 1;
-    }
-    finishTags(tags, text);
-  };
+  const readTrailingChunks = trailingChunkReader({
+    source,
+    position: state.position,
+    end: fileEnd,
+    previousWasOdd,
+    littleEndian: false,
+    visit,
+    finish: () => finishTags(tags, text),
+  });
   if (comm === null && ssnd !== null && source.randomAccess) await readTrailingChunks();
   const common = comm as {
     channels: number;

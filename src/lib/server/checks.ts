@@ -23,6 +23,7 @@ import {
 import { type NormalizationPreview, previewNormalization } from '../specs/normalization';
 import type { DeliveryProfile } from '../specs/schema';
 import type { Finding, MeasurementsByTrack, ReleaseForCheck } from '../specs/types';
+import { isEditable } from '../workflow/transitions';
 import { recordAudit } from './audit';
 import { getEnv } from './env';
 import { ApiError } from './errors';
@@ -303,7 +304,7 @@ export async function rerunChecksAfterUpload(db: Database, recordingId: string):
     .innerJoin(releases, eq(releases.id, tracks.releaseId))
     .where(eq(tracks.recordingId, recordingId));
   for (const row of rows) {
-    if (!['draft', 'in_review', 'returned'].includes(row.state)) continue;
+    if (!isEditable(row.state)) continue;
     const profileCount = await db
       .select({ id: releaseProfiles.profileId })
       .from(releaseProfiles)
@@ -344,8 +345,10 @@ export async function latestCheckReport(
   db: Database,
   actor: Actor,
   releaseId: string,
+  /** The release's current inputs, when the caller has loaded them already. */
+  loaded?: CheckInputs,
 ): Promise<CheckReport> {
-  const inputs = await loadCheckInputs(db, actor.organizationId, releaseId);
+  const inputs = loaded ?? (await loadCheckInputs(db, actor.organizationId, releaseId));
   const [row] = await db
     .select({ run: checkRuns, ranBy: user.name })
     .from(checkRuns)

@@ -8,13 +8,19 @@ import { enqueueMail, flushOutbox } from '../mail/outbox';
 import { renderReadyForApprovalMail, renderReturnedMail } from '../mail/templates';
 import type { Finding } from '../specs/types';
 import {
+  activeWaivers,
   findApprovalBlockers,
   isApprovable,
   measuredFingerprint,
   type Waiver,
   waiverPermissionFor,
 } from '../workflow/approval';
-import { checkTransition, type ReleaseState, type WorkflowAction } from '../workflow/transitions';
+import {
+  checkTransition,
+  isEditable,
+  type ReleaseState,
+  type WorkflowAction,
+} from '../workflow/transitions';
 import { recordAudit } from './audit';
 import { latestCheckReport, loadCheckInputs } from './checks';
 import { getEnv } from './env';
@@ -72,7 +78,7 @@ export async function getWorkflowStatus(
 ): Promise<WorkflowStatus> {
   const release = await loadRelease(db, actor, releaseId);
   const inputs = await loadCheckInputs(db, actor.organizationId, releaseId);
-  const report = await latestCheckReport(db, actor, releaseId);
+  const report = await latestCheckReport(db, actor, releaseId, inputs);
   const waiverList = await loadWaivers(db, releaseId);
   const audio = await latestSignoff(db, releaseId, 'audio');
   const metadata = await latestSignoff(db, releaseId, 'metadata');
@@ -87,18 +93,7 @@ export async function getWorkflowStatus(
     audioSignedOff: audioCurrent,
     metadataSignedOff: metadataCurrent,
   });
-  const activeKeys = new Set(
-    waiverList
-      .filter((w) =>
-        findings.some(
-          (f) =>
-            f.key === w.findingKey &&
-            f.severity === 'warning' &&
-            measuredFingerprint(f) === w.waivedMeasured,
-        ),
-      )
-      .map((w) => w.findingKey),
-  );
+  const activeKeys = new Set(activeWaivers(findings, waiverList).keys());
   const packageRows = await db
     .select()
     .from(packages)
@@ -264,7 +259,7 @@ export async function waiveFinding(
   input: { findingKey: string; reason: string },
 ) {
   const release = await loadRelease(db, actor, releaseId);
-  if (!['draft', 'in_review', 'returned'].includes(release.state)) {
+  if (!isEditable(release.state)) {
     throw new ApiError(
       'conflict',
       'This release is approved and locked; reopen it to change waivers.',
@@ -326,7 +321,7 @@ export async function revokeWaiver(
   waiverId: string,
 ) {
   const release = await loadRelease(db, actor, releaseId);
-  if (!['draft', 'in_review', 'returned'].includes(release.state)) {
+  if (!isEditable(release.state)) {
     throw new ApiError(
       'conflict',
       'This release is approved and locked; reopen it to change waivers.',
