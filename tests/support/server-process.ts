@@ -18,20 +18,36 @@ export function freePort(): Promise<number> {
   });
 }
 
-/** Starts `scripts/serve.ts` in its own process (tsx as a loader, so a kill reaches it). */
-export async function startServerProcess(): Promise<{ child: ChildProcess; url: string }> {
+/**
+ * Starts `scripts/serve.ts` in its own process (tsx as a loader, so a kill reaches it).
+ * `env` overrides the test server's settings, e.g. another database or S3 endpoint.
+ */
+export async function startServerProcess(
+  options: { env?: Record<string, string> } = {},
+): Promise<{ child: ChildProcess; url: string; output: () => string }> {
   const port = await freePort();
   const url = `http://localhost:${port}`;
   const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/serve.ts'], {
-    env: { ...process.env, ...inject('serverEnv'), PORT: String(port), BETTER_AUTH_URL: url },
-    stdio: ['ignore', 'ignore', 'ignore'],
+    env: {
+      ...process.env,
+      ...inject('serverEnv'),
+      ...options.env,
+      PORT: String(port),
+      BETTER_AUTH_URL: url,
+    },
+    stdio: ['ignore', 'pipe', 'pipe'],
   });
   started.push(child);
+  // What the server printed, for tests that check its logs or explain its failure.
+  const printed: Buffer[] = [];
+  child.stdout?.on('data', (chunk: Buffer) => printed.push(chunk));
+  child.stderr?.on('data', (chunk: Buffer) => printed.push(chunk));
+  const output = () => Buffer.concat(printed).toString('utf8');
   for (let i = 0; i < 150; i++) {
     const ok = await fetch(`${url}/sign-in`)
       .then((r) => r.ok)
       .catch(() => false);
-    if (ok) return { child, url };
+    if (ok) return { child, url, output };
     await new Promise((r) => setTimeout(r, 100));
   }
   throw new Error('the second server did not start');

@@ -4,6 +4,8 @@ import { getEnv } from '../server/env';
 import * as schema from './schema';
 
 export type Database = ReturnType<typeof createDatabase>;
+/** A transaction handle, as passed to `db.transaction(async (tx) => …)`. */
+export type Tx = Parameters<Parameters<Database['transaction']>[0]>[0];
 
 /** Opens the database named by `url` (file:, libsql:, http:) with our schema attached. */
 export function createDatabase(url: string, authToken?: string) {

@@ -1,5 +1,6 @@
 import { getDb } from '../db/client';
 import { flushOutbox, startOutboxWorker } from '../mail/outbox';
+import { getEnv } from './env';
 import { recoverInterruptedPackages } from './packaging';
 import { resumeInterruptedWork } from './uploads/analysis-queue';
 
@@ -15,7 +16,7 @@ export function ensureBackgroundWork(): void {
   if (started) return;
   started = true;
   const db = getDb();
-  startOutboxWorker(db);
+  startOutboxWorker(db, getEnv().QUAYSIDE_MAIL_RETRY_MS);
   void recoverInterruptedPackages(db)
     .then(
       (n) => n > 0 && console.log(`[packaging] ${n} interrupted package build(s) marked failed`),

@@ -35,6 +35,12 @@ const envSchema = z.object({
     .int()
     .positive()
     .default(5 * 1024 ** 3),
+  /** How often queued e-mail that could not be sent is tried again, milliseconds. */
+  QUAYSIDE_MAIL_RETRY_MS: z.coerce
+    .number({ error: 'QUAYSIDE_MAIL_RETRY_MS must be a number of milliseconds' })
+    .int()
+    .min(100)
+    .default(15_000),
   /** HTTP address of our local mail fake; when set, the sent-mail page reads from it. */
   MAIL_FAKE_URL: z.url().optional(),
 });

@@ -8,6 +8,8 @@ export const errorStatus = {
   payload_too_large: 413,
   unsupported_media_type: 415,
   internal: 500,
+  /** A service the server depends on (object storage) could not be reached; try again. */
+  unavailable: 503,
 } as const;
 
 export type ErrorCode = keyof typeof errorStatus;

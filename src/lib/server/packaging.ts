@@ -6,11 +6,11 @@
  * their staging objects removed) when the server next starts.
  */
 import { createHash, randomUUID } from 'node:crypto';
-import { PassThrough } from 'node:stream';
+import { PassThrough, Readable } from 'node:stream';
 import { CopyObjectCommand, DeleteObjectCommand } from '@aws-sdk/client-s3';
 import { Upload } from '@aws-sdk/lib-storage';
 import { and, asc, desc, eq, inArray, max } from 'drizzle-orm';
-import type { Database } from '../db/client';
+import type { Database, Tx } from '../db/client';
 import {
   artworks,
   audioFiles,
@@ -35,7 +35,7 @@ import {
 } from '../packaging/documents';
 import { bagName, masterFileName } from '../packaging/naming';
 import type { Finding } from '../specs/types';
-import { getObjectStream, getS3 } from '../storage/s3';
+import { getObjectStream, getS3, isStorageError } from '../storage/s3';
 import { activeWaivers } from '../workflow/approval';
 import { recordAudit } from './audit';
 import { getEnv } from './env';
@@ -248,8 +248,27 @@ async function buildPackage(db: Database, row: PackageRow, organizationId: strin
   const s3 = getS3();
   const staging = stagingKey(row);
   let upload: Upload | null = null;
+  let uploadDone: Promise<unknown> = Promise.resolve();
+  // The first object-store failure seen by a read or the upload: later errors (an aborted
+  // zip stream) are its consequences, and the user should hear about the cause.
+  let storageFault: unknown = null;
+  const noteFault = (error: unknown) => {
+    if (storageFault === null && isStorageError(error)) storageFault = error;
+  };
   try {
-    const { release, packageRelease, payload } = await loadPackageRelease(db, row, organizationId);
+    const loaded = await loadPackageRelease(db, row, organizationId);
+    const { release, packageRelease } = loaded;
+    const payload = loaded.payload.map((file) => ({
+      ...file,
+      open: async () => {
+        const opened = await Promise.resolve(file.open()).catch((error: unknown) => {
+          noteFault(error);
+          throw error;
+        });
+        if (opened instanceof Readable) opened.on('error', noteFault);
+        return opened;
+      },
+    }));
     await db
       .update(packages)
       .set({ totalFiles: payload.length + 4 })
@@ -269,6 +288,7 @@ async function buildPackage(db: Database, row: PackageRow, organizationId: strin
       queueSize: 2,
     });
     const uploaded = upload.done();
+    uploadDone = uploaded.catch(noteFault);
     let lastProgress = 0;
     const bag = await writeBag({
       bagName: bagName(release.catalogueNumber, release.id, row.version),
@@ -308,33 +328,45 @@ async function buildPackage(db: Database, row: PackageRow, organizationId: strin
     for (const [path, sha256] of bag.payloadSha256) {
       if (!manifest.some((m) => m.path === path)) manifest.push({ path, sha256 });
     }
-    await db
-      .update(packages)
-      .set({
-        state: 'ready',
-        sizeBytes: zipBytes,
-        sha256: zipHash.digest('hex'),
-        manifest,
-        progressFiles: payload.length + 4,
-        readyAt: new Date(),
-      })
-      .where(eq(packages.id, row.id));
-    await db
-      .update(releases)
-      .set({ state: 'packaged', updatedAt: new Date() })
-      .where(and(eq(releases.id, row.releaseId), eq(releases.state, 'approved')));
-    await recordAudit(db, {
-      organizationId,
-      releaseId: row.releaseId,
-      actorId: row.createdBy,
-      action: 'package.ready',
-      after: { version: row.version, sizeBytes: zipBytes, files: bag.payloadCount },
+    // The ready row, the release's new state, the audit event and the distributors' mail
+    // are recorded together: a crash leaves either all of them or a 'building' row.
+    await db.transaction(async (tx) => {
+      await tx
+        .update(packages)
+        .set({
+          state: 'ready',
+          sizeBytes: zipBytes,
+          sha256: zipHash.digest('hex'),
+          manifest,
+          progressFiles: payload.length + 4,
+          readyAt: new Date(),
+        })
+        .where(eq(packages.id, row.id));
+      await tx
+        .update(releases)
+        .set({ state: 'packaged', updatedAt: new Date() })
+        .where(and(eq(releases.id, row.releaseId), eq(releases.state, 'approved')));
+      await recordAudit(tx, {
+        organizationId,
+        releaseId: row.releaseId,
+        actorId: row.createdBy,
+        action: 'package.ready',
+        after: { version: row.version, sizeBytes: zipBytes, files: bag.payloadCount },
+      });
+      await queueDistributorMail(tx, organizationId, row.releaseId, row.version);
     });
-    await notifyDistributors(db, organizationId, row.releaseId, row.version);
+    void flushOutbox(db).catch(() => undefined);
   } catch (error) {
-    const message = error instanceof Error ? error.message : String(error);
-    console.error(`[packaging] package ${row.id} failed:`, message);
     await upload?.abort().catch(() => undefined);
+    // A failed part upload may be why the zip stream stopped: let it report first.
+    await uploadDone;
+    noteFault(error);
+    const detail = error instanceof Error ? error.message : String(error);
+    console.error(`[packaging] package ${row.id} failed:`, detail);
+    const message =
+      storageFault !== null
+        ? 'The file store could not be reached while the package was built; nothing was published. Build it again.'
+        : detail;
     await s3.client
       .send(new DeleteObjectCommand({ Bucket: s3.bucket, Key: staging }))
       .catch(() => undefined);
@@ -355,6 +387,18 @@ async function buildPackage(db: Database, row: PackageRow, organizationId: strin
 /** Mails every distributor the release is shared with that a new package is ready. */
 export async function notifyDistributors(
   db: Database,
+  organizationId: string,
+  releaseId: string,
+  version: number,
+  onlyUserIds?: string[],
+): Promise<void> {
+  await queueDistributorMail(db, organizationId, releaseId, version, onlyUserIds);
+  void flushOutbox(db).catch(() => undefined);
+}
+
+/** Queues the package-ready mail to the release's distributors (in the caller's transaction). */
+async function queueDistributorMail(
+  db: Database | Tx,
   organizationId: string,
   releaseId: string,
   version: number,
@@ -385,7 +429,6 @@ export async function notifyDistributors(
       }),
     ),
   );
-  void flushOutbox(db).catch(() => undefined);
 }
 
 /**

@@ -219,18 +219,20 @@ export async function signOff(
       'Every track needs its master file before the audio can be signed off.',
     );
   }
-  await db.insert(signoffs).values({
-    id: randomUUID(),
-    releaseId,
-    kind,
-    fingerprint: kind === 'audio' ? inputs.audioFingerprint : inputs.metadataFingerprint,
-    signedBy: actor.userId,
-  });
-  await recordAudit(db, {
-    organizationId: actor.organizationId,
-    releaseId,
-    actorId: actor.userId,
-    action: `signoff.${kind}`,
+  await db.transaction(async (tx) => {
+    await tx.insert(signoffs).values({
+      id: randomUUID(),
+      releaseId,
+      kind,
+      fingerprint: kind === 'audio' ? inputs.audioFingerprint : inputs.metadataFingerprint,
+      signedBy: actor.userId,
+    });
+    await recordAudit(tx, {
+      organizationId: actor.organizationId,
+      releaseId,
+      actorId: actor.userId,
+      action: `signoff.${kind}`,
+    });
   });
   const status = await getWorkflowStatus(db, actor, releaseId);
   if (status.approvable) {
@@ -354,26 +356,29 @@ async function moveState(
   expectedVersion: number,
   audit: { action: string; after?: unknown },
 ) {
-  const [moved] = await db
-    .update(releases)
-    .set({ state: to, version: release.version + 1, updatedAt: new Date() })
-    .where(and(eq(releases.id, release.id), eq(releases.version, expectedVersion)))
-    .returning();
-  if (!moved) {
-    throw new ApiError(
-      'conflict',
-      'Someone else changed this release since you opened it. Reload and try again.',
-    );
-  }
-  await recordAudit(db, {
-    organizationId: release.organizationId,
-    releaseId: release.id,
-    actorId: actor.userId,
-    action: audit.action,
-    before: { state: release.state },
-    after: { state: to, ...(audit.after as object | undefined) },
+  // The state change and its audit event are written together or not at all.
+  return db.transaction(async (tx) => {
+    const [moved] = await tx
+      .update(releases)
+      .set({ state: to, version: release.version + 1, updatedAt: new Date() })
+      .where(and(eq(releases.id, release.id), eq(releases.version, expectedVersion)))
+      .returning();
+    if (!moved) {
+      throw new ApiError(
+        'conflict',
+        'Someone else changed this release since you opened it. Reload and try again.',
+      );
+    }
+    await recordAudit(tx, {
+      organizationId: release.organizationId,
+      releaseId: release.id,
+      actorId: actor.userId,
+      action: audit.action,
+      before: { state: release.state },
+      after: { state: to, ...(audit.after as object | undefined) },
+    });
+    return moved;
   });
-  return moved;
 }
 
 export async function submitForReview(

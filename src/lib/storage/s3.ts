@@ -107,6 +107,23 @@ export async function getObjectRange(
   };
 }
 
+const networkCodes = new Set(['ECONNREFUSED', 'ECONNRESET', 'EPIPE', 'ETIMEDOUT', 'EHOSTUNREACH']);
+
+/**
+ * True for a failure to reach or use the object store: an S3 error answer (the SDK's
+ * errors carry `$metadata`) or a dropped or refused connection, here or in its `cause`.
+ */
+export function isStorageError(error: unknown): boolean {
+  for (let e = error, depth = 0; e instanceof Error && depth < 5; depth++) {
+    const { $metadata, code } = e as Error & { $metadata?: unknown; code?: string };
+    if ($metadata !== undefined || networkCodes.has(code ?? '') || e.name === 'TimeoutError') {
+      return true;
+    }
+    e = e.cause;
+  }
+  return false;
+}
+
 /** Deletes the object under `key`; deleting a missing object is not an error. */
 export async function deleteObject(
   s3: { client: S3Client; bucket: string },

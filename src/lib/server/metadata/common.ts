@@ -1,15 +1,14 @@
 import { and, eq, inArray } from 'drizzle-orm';
 import { LOCKED_RELEASE_STATES } from '../../api/metadata-schemas';
 import type { ReleaseDetail } from '../../api/schemas';
-import type { Database } from '../../db/client';
+import type { Database, Tx } from '../../db/client';
 import { releases, tracks } from '../../db/schema';
 import { ApiError } from '../errors';
 import { getRelease } from '../releases';
 import type { Actor } from '../route';
 
 export type ReleaseRow = typeof releases.$inferSelect;
-/** A transaction handle or the database itself. */
-export type Tx = Parameters<Parameters<Database['transaction']>[0]>[0];
+export type { Tx };
 
 const stateWords: Record<string, string> = {
   approved: 'approved',

@@ -10,7 +10,7 @@ import { Upload } from '@aws-sdk/lib-storage';
 import { and, eq, max } from 'drizzle-orm';
 import type { Database } from '../../db/client';
 import { audioFiles, recordings, releases, tracks, uploads } from '../../db/schema';
-import { deleteObject, getS3 } from '../../storage/s3';
+import { deleteObject, getS3, isStorageError } from '../../storage/s3';
 import { recordAudit } from '../audit';
 import { getEnv } from '../env';
 import { ApiError } from '../errors';
@@ -330,14 +330,21 @@ export async function receiveUpload(request: ReceiveRequest): Promise<ReceivedUp
       originalName: displayName,
     };
   } catch (error) {
+    const unexpected = !(error instanceof UploadStopped) && !controller.signal.aborted;
+    const storageFailed = unexpected && isStorageError(error);
     const stopped =
       error instanceof UploadStopped
         ? error
         : controller.signal.reason instanceof UploadStopped
           ? controller.signal.reason
-          : new UploadStopped('failed', 'The file could not be stored; nothing was kept.');
-    if (!(error instanceof UploadStopped) && !controller.signal.aborted) {
-      console.error('[upload] failed', uploadId, error);
+          : new UploadStopped(
+              'failed',
+              storageFailed
+                ? 'The file store could not be reached, so the file was not stored. Try again.'
+                : 'The file could not be stored; nothing was kept.',
+            );
+    if (unexpected) {
+      console.error('[upload] failed', uploadId, error instanceof Error ? error.message : error);
     }
     await transfer.abort().catch(() => undefined);
     // A small body may have been stored in one PUT before the failure was noticed.
@@ -353,7 +360,11 @@ export async function receiveUpload(request: ReceiveRequest): Promise<ReceivedUp
       .where(eq(uploads.id, uploadId));
     await reader.cancel().catch(() => undefined);
     throw new ApiError(
-      stopped.state === 'cancelled' ? 'conflict' : 'invalid_request',
+      storageFailed
+        ? 'unavailable'
+        : stopped.state === 'cancelled'
+          ? 'conflict'
+          : 'invalid_request',
       `${stopped.message} The previous file, if any, is still current.`,
     );
   } finally {

@@ -47,16 +47,25 @@ export const POST = defineRoute('audio:upload', async ({ ctx, actor }) => {
       : parseOrThrow(contentLengthSchema, lengthHeader, 'Content-Length');
   const db = getDb();
   await resumeInterruptedWork(db);
-  const result = await receiveUpload({
-    db,
-    actor,
-    releaseId: id,
-    uploadId: query.uploadId,
-    rawName: query.name,
-    trackId: query.trackId ?? null,
-    contentLength,
-    body: ctx.request.body,
-    signal: ctx.request.signal,
-  });
-  return Response.json(result, { status: 201 });
+  try {
+    const result = await receiveUpload({
+      db,
+      actor,
+      releaseId: id,
+      uploadId: query.uploadId,
+      rawName: query.name,
+      trackId: query.trackId ?? null,
+      contentLength,
+      body: ctx.request.body,
+      signal: ctx.request.signal,
+    });
+    return Response.json(result, { status: 201 });
+  } catch (error) {
+    if (!(error instanceof ApiError)) throw error;
+    // A refusal can come before the whole body was read: close the connection so the
+    // client does not send its next request down a socket that still holds file bytes.
+    const response = error.toResponse();
+    response.headers.set('connection', 'close');
+    return response;
+  }
 });
