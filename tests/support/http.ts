@@ -60,8 +60,12 @@ export class Client {
   }
 }
 
-export async function signedIn(email: string, baseUrl?: string): Promise<Client> {
+export async function signedIn(
+  email: string,
+  baseUrl?: string,
+  password = demoPassword,
+): Promise<Client> {
   const client = new Client(baseUrl);
-  await client.signIn(email);
+  await client.signIn(email, password);
   return client;
 }
