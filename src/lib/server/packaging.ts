@@ -6,7 +6,7 @@
  * their staging objects removed) when the server next starts.
  */
 import { createHash, randomUUID } from 'node:crypto';
-import { PassThrough, Readable } from 'node:stream';
+import { PassThrough } from 'node:stream';
 import { CopyObjectCommand, DeleteObjectCommand } from '@aws-sdk/client-s3';
 import { Upload } from '@aws-sdk/lib-storage';
 import { and, asc, desc, eq, inArray, max } from 'drizzle-orm';
@@ -258,17 +258,22 @@ async function buildPackage(db: Database, row: PackageRow, organizationId: strin
   try {
     const loaded = await loadPackageRelease(db, row, organizationId);
     const { release, packageRelease } = loaded;
-    const payload = loaded.payload.map((file) => ({
-      ...file,
-      open: async () => {
-        const opened = await Promise.resolve(file.open()).catch((error: unknown) => {
-          noteFault(error);
-          throw error;
-        });
-        if (opened instanceof Readable) opened.on('error', noteFault);
-        return opened;
-      },
-    }));
+    const payload = loaded.payload.map(
+      (file): PayloadFile => ({
+        ...file,
+        open: () => {
+          const opened = file.open();
+          if (!(opened instanceof Promise)) return opened;
+          return opened.then(
+            (stream) => stream.on('error', noteFault),
+            (error: unknown) => {
+              noteFault(error);
+              throw error;
+            },
+          );
+        },
+      }),
+    );
     await db
       .update(packages)
       .set({ totalFiles: payload.length + 4 })
