@@ -27,6 +27,7 @@ import { isEditable } from '../workflow/transitions';
 import { recordAudit } from './audit';
 import { getEnv } from './env';
 import { ApiError } from './errors';
+import { measurementsOf } from './measurements';
 import { resolveProfiles } from './profiles';
 import type { Actor } from './route';
 
@@ -72,11 +73,15 @@ export async function loadCheckInputs(
         .where(inArray(audioFiles.recordingId, recordingIds))
         .groupBy(audioFiles.recordingId)
     : [];
-  const files = new Map<string, typeof audioFiles.$inferSelect>();
+  const files = new Map<string, { id: string; analysisState: string; analyzedAt: Date | null }>();
   for (const l of latest) {
     if (l.fileVersion == null) continue;
     const [file] = await db
-      .select()
+      .select({
+        id: audioFiles.id,
+        analysisState: audioFiles.analysisState,
+        analyzedAt: audioFiles.analyzedAt,
+      })
       .from(audioFiles)
       .where(
         and(eq(audioFiles.recordingId, l.recordingId), eq(audioFiles.fileVersion, l.fileVersion)),
@@ -142,11 +147,12 @@ export async function loadCheckInputs(
   };
   const measurements: Record<string, AudioMeasurements | null> = {};
   const audioIdentity: string[] = [];
+  const done = [...files.values()].filter((f) => f.analysisState === 'done');
+  const measured = await measurementsOf(db, done);
   for (const { track, recording } of trackRows) {
     const file = files.get(recording.id);
-    const analysed =
-      file?.analysisState === 'done' ? (file.measurements as AudioMeasurements) : null;
-    measurements[track.id] = analysed;
+    measurements[track.id] =
+      file?.analysisState === 'done' ? (measured.get(file.id) ?? null) : null;
     audioIdentity.push(file ? `${file.id}:${file.analysisState}` : '-');
   }
   const hash = (value: unknown) => createHash('sha256').update(JSON.stringify(value)).digest('hex');

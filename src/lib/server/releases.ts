@@ -144,7 +144,23 @@ async function loadTracks(
     .groupBy(audioFiles.recordingId)
     .as('latest');
   const rows = await db
-    .select({ track: tracks, recording: recordings, audio: audioFiles })
+    .select({
+      track: tracks,
+      recording: recordings,
+      // Not the measurements: a large JSON document per file that the list does not show.
+      audio: {
+        id: audioFiles.id,
+        fileVersion: audioFiles.fileVersion,
+        originalName: audioFiles.originalName,
+        sizeBytes: audioFiles.sizeBytes,
+        sha256: audioFiles.sha256,
+        sampleRateHz: audioFiles.sampleRateHz,
+        bitsPerSample: audioFiles.bitsPerSample,
+        channels: audioFiles.channels,
+        durationSamples: audioFiles.durationSamples,
+        analysisState: audioFiles.analysisState,
+      },
+    })
     .from(tracks)
     .innerJoin(recordings, eq(recordings.id, tracks.recordingId))
     .leftJoin(latest, eq(latest.recordingId, tracks.recordingId))
