@@ -1,7 +1,8 @@
 /**
  * Malformed input never crashes, hangs or allocates without bound: each file in a generated
- * corpus gives its typed error (or, where the damage is harmless, a measurement), and a
- * bounded fast-check run of random damage to a valid file does the same.
+ * corpus gives its typed error (or, where the damage is harmless, a measurement), and
+ * fast-check runs of random damage to valid WAV, AIFF, AIFF-C and RF64 files do the same
+ * (thousands of cases by default; `npm run fuzz` runs many more).
  */
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -13,6 +14,7 @@ import {
   analyzeStreamInThread,
 } from '../../src/lib/audio/analyze-in-thread.ts';
 import { AudioAnalysisError, type AudioErrorCode } from '../../src/lib/audio/errors.ts';
+import { fuzzTimeout, runFuzz } from '../support/fuzz.ts';
 import { runFfmpeg } from './support/reference-tools.ts';
 import { chunk, createRandom, sine, toReadable, writeAiff, writeWav } from './support/signals.ts';
 
@@ -243,40 +245,93 @@ describe('malformed-file corpus', () => {
   });
 });
 
-describe('fuzzing damaged WAV files (fast-check, bounded)', () => {
-  it('every damaged file either measures or gives a typed error, within a time limit', async () => {
-    const base = writeWav([tone.subarray(0, 2400), tone.subarray(0, 2400)], fs, {
-      format: 'int24',
-      chunksBefore: [{ id: 'LIST', body: Buffer.from('INFOINAM\x05\x00\x00\x00Tide\x00\x00') }],
-    });
-    const damage = fc.record({
-      writes: fc.array(
-        fc.record({ at: fc.nat({ max: 120 }), value: fc.integer({ min: 0, max: 255 }) }),
-        { maxLength: 8 },
-      ),
-      words: fc.array(fc.record({ at: fc.nat({ max: 116 }), value: fc.nat() }), { maxLength: 3 }),
-      cut: fc.option(fc.nat({ max: base.length }), { nil: undefined }),
-    });
-    await fc.assert(
-      fc.asyncProperty(damage, async ({ writes, words, cut }) => {
-        const bytes = Buffer.from(base);
-        for (const w of writes) bytes[w.at] = w.value;
-        for (const w of words) bytes.writeUInt32LE(w.value >>> 0, w.at);
-        const damaged = cut === undefined ? bytes : bytes.subarray(0, cut);
-        const result = await outcome(damaged, 'fuzz.wav');
-        expect(typeof result).toBe('string');
-        // The stream reader must agree with the file reader on success or the error code.
-        const streamed = await withTimeout(
-          analyzeStreamInThread(toReadable(damaged, 997), damaged.length).then(
-            () => 'ok' as const,
-            (error: unknown) =>
-              error instanceof AudioAnalysisError ? error.code : Promise.reject(error),
-          ),
-          10_000,
-        );
-        expect(streamed).toBe(result);
-      }),
-      { numRuns: 300, seed: 20_260_102 },
-    );
-  });
+/** Measures the damaged bytes from a file and from a stream; both must end the same way. */
+async function expectFileAndStreamAgree(damaged: Uint8Array): Promise<void> {
+  const result = await outcome(damaged, 'fuzz.wav');
+  expect(typeof result).toBe('string');
+  const streamed = await withTimeout(
+    analyzeStreamInThread(toReadable(damaged, 997), damaged.length).then(
+      () => 'ok' as const,
+      (error: unknown) =>
+        error instanceof AudioAnalysisError ? error.code : Promise.reject(error),
+    ),
+    10_000,
+  );
+  expect(streamed).toBe(result);
+}
+
+// Counts and seed come from tests/support/fuzz.ts: FUZZ_RUNS scales them for `npm run fuzz`.
+describe('fuzzing damaged files (fast-check, bounded)', () => {
+  it(
+    'every damaged WAV either measures or gives a typed error, within a time limit',
+    async () => {
+      const base = writeWav([tone.subarray(0, 2400), tone.subarray(0, 2400)], fs, {
+        format: 'int24',
+        chunksBefore: [{ id: 'LIST', body: Buffer.from('INFOINAM\x05\x00\x00\x00Tide\x00\x00') }],
+      });
+      const damage = fc.record({
+        writes: fc.array(
+          fc.record({ at: fc.nat({ max: 120 }), value: fc.integer({ min: 0, max: 255 }) }),
+          { maxLength: 8 },
+        ),
+        words: fc.array(fc.record({ at: fc.nat({ max: 116 }), value: fc.nat() }), {
+          maxLength: 3,
+        }),
+        cut: fc.option(fc.nat({ max: base.length }), { nil: undefined }),
+      });
+      await runFuzz(
+        'audio: damaged WAV',
+        fc.asyncProperty(damage, async ({ writes, words, cut }) => {
+          const bytes = Buffer.from(base);
+          for (const w of writes) bytes[w.at] = w.value;
+          for (const w of words) bytes.writeUInt32LE(w.value >>> 0, w.at);
+          await expectFileAndStreamAgree(cut === undefined ? bytes : bytes.subarray(0, cut));
+        }),
+        1500,
+      );
+    },
+    fuzzTimeout(120_000),
+  );
+
+  it(
+    'every damaged AIFF, AIFF-C, RF64 or extensible WAV does the same',
+    async () => {
+      const short = tone.subarray(0, 1200);
+      const bases = [
+        writeAiff([short, short], fs, { bits: 24 }),
+        writeAiff([short], fs, { compression: 'sowt' }),
+        writeAiff([short, short], fs, { compression: 'fl32' }),
+        writeWav([short, short], fs, { format: 'int16', rf64: true }),
+        writeWav([short, short], fs, { format: 'float32', extensibleMask: 0x3 }),
+      ];
+      const damage = fc.record({
+        base: fc.nat({ max: bases.length - 1 }),
+        writes: fc.array(
+          fc.record({ at: fc.nat({ max: 100 }), value: fc.integer({ min: 0, max: 255 }) }),
+          { maxLength: 8 },
+        ),
+        words: fc.array(
+          fc.record({ at: fc.nat({ max: 96 }), value: fc.nat(), bigEndian: fc.boolean() }),
+          { maxLength: 3 },
+        ),
+        cut: fc.option(fc.double({ min: 0, max: 1, noNaN: true }), { nil: undefined }),
+      });
+      await runFuzz(
+        'audio: damaged AIFF/AIFF-C/RF64/extensible',
+        fc.asyncProperty(damage, async ({ base, writes, words, cut }) => {
+          const bytes = Buffer.from(bases[base]!);
+          for (const w of writes) bytes[w.at] = w.value;
+          for (const w of words) {
+            if (w.bigEndian) bytes.writeUInt32BE(w.value >>> 0, w.at);
+            else bytes.writeUInt32LE(w.value >>> 0, w.at);
+          }
+          const damaged =
+            cut === undefined ? bytes : bytes.subarray(0, Math.floor(cut * bytes.length));
+          await expectFileAndStreamAgree(damaged);
+        }),
+        2000,
+      );
+    },
+    fuzzTimeout(120_000),
+  );
 });

@@ -17,6 +17,13 @@ export function toSafeName(text: string, maxLength = 80): string {
 }
 
 /**
+ * Extensions a master keeps in a package. Anything else (an uploader's "x.exe", a name with
+ * no dot at all, whose last "extension" is the whole name) becomes .wav: we store only WAV
+ * and AIFF masters, checked by their content.
+ */
+const MASTER_EXTENSIONS = new Set(['wav', 'bwf', 'rf64', 'aif', 'aiff', 'aifc']);
+
+/**
  * "A1 Artist - Title.wav" for vinyl sides, "01 Artist - Title.wav" for a single disc,
  * "2-03 Artist - Title.wav" from the second disc on a multi-disc release.
  */
@@ -37,7 +44,8 @@ export function masterFileName(track: {
       ? `${track.disc}-${number}`
       : number;
   const title = track.versionTitle ? `${track.title} (${track.versionTitle})` : track.title;
-  const extension = track.extension.replace(/[^a-z0-9]/gi, '').toLowerCase() || 'wav';
+  const asked = track.extension.replace(/[^a-z0-9]/gi, '').toLowerCase();
+  const extension = MASTER_EXTENSIONS.has(asked) ? asked : 'wav';
   return `${prefix} ${toSafeName(track.artist, 60)} - ${toSafeName(title, 100)}.${extension}`;
 }
 
@@ -47,9 +55,10 @@ export function bagName(
   releaseId: string,
   version: number,
 ): string {
+  // No leading dot or dash: the folder would be hidden, or read as an option by a shell tool.
   const base = (catalogueNumber ?? releaseId)
     .replace(/[^A-Za-z0-9._-]+/g, '-')
-    .replace(/^-+|-+$/g, '');
+    .replace(/^[-.]+|-+$/g, '');
   return `${base || 'release'}-v${version}`;
 }
 

@@ -93,14 +93,53 @@ export function parseOrThrow<T extends z.ZodType>(
   return parsed.data;
 }
 
-/** Reads a JSON body, refusing non-JSON content types and malformed JSON with a 400/415. */
-export async function readJson(request: Request): Promise<unknown> {
+/** Largest JSON body a route reads unless it says otherwise (every form and order fits). */
+export const DEFAULT_JSON_MAX_BYTES = 1024 * 1024;
+
+/**
+ * Reads a JSON body, refusing non-JSON content types (415), bodies over `maxBytes` (413, from
+ * Content-Length before reading, or as soon as a streamed body passes it) and malformed JSON
+ * (400). Memory stays bounded by `maxBytes` whatever the client sends.
+ */
+export async function readJson(
+  request: Request,
+  options: { maxBytes?: number } = {},
+): Promise<unknown> {
+  const maxBytes = options.maxBytes ?? DEFAULT_JSON_MAX_BYTES;
   const type = request.headers.get('content-type') ?? '';
   if (!type.toLowerCase().startsWith('application/json')) {
     throw new ApiError('unsupported_media_type', 'Send the request body as application/json.');
   }
+  const tooLarge = () =>
+    new ApiError(
+      'payload_too_large',
+      `The request body is larger than ${Math.round(maxBytes / 1024)} KiB.`,
+    );
+  const declared = Number(request.headers.get('content-length') ?? '0');
+  if (declared > maxBytes) throw tooLarge();
+  const parts: Uint8Array[] = [];
+  let length = 0;
   try {
-    return await request.json();
+    if (request.body) {
+      const reader = request.body.getReader();
+      for (;;) {
+        const { done, value } = await reader.read();
+        if (done) break;
+        length += value.length;
+        if (length > maxBytes) {
+          await reader.cancel().catch(() => undefined);
+          throw tooLarge();
+        }
+        parts.push(value);
+      }
+    }
+  } catch (error) {
+    if (error instanceof ApiError) throw error;
+    throw new ApiError('invalid_request', 'The request body could not be read.');
+  }
+  try {
+    // As Request.json(): UTF-8, a leading BOM dropped, invalid bytes become U+FFFD.
+    return JSON.parse(new TextDecoder().decode(Buffer.concat(parts)));
   } catch {
     throw new ApiError('invalid_request', 'The request body is not valid JSON.');
   }

@@ -8,6 +8,7 @@ import {
 import { Upload } from '@aws-sdk/lib-storage';
 import { getSignedUrl } from '@aws-sdk/s3-request-presigner';
 import { getEnv } from '../server/env';
+import { attachmentDisposition } from './content-disposition';
 
 export interface S3Settings {
   endpoint: string;
@@ -139,7 +140,7 @@ export async function presignGetUrl(
   options: { expiresInSeconds: number; downloadName?: string },
 ): Promise<string> {
   const disposition = options.downloadName
-    ? `attachment; filename*=UTF-8''${encodeURIComponent(options.downloadName)}`
+    ? attachmentDisposition(options.downloadName)
     : undefined;
   return getSignedUrl(
     s3.client,

@@ -37,7 +37,7 @@ const columnOf: Record<string, CsvColumn> = {
   side: 'side',
 };
 
-type Candidate = {
+export type Candidate = {
   title: string;
   versionTitle: string | null;
   artist: string;
@@ -64,7 +64,7 @@ function cellOf(field: keyof Candidate, value: Candidate[keyof Candidate]): stri
   return String(value);
 }
 
-function currentOf(t: Track): Candidate {
+export function currentOf(t: Track): Candidate {
   return {
     title: t.title,
     versionTitle: t.versionTitle,
@@ -80,6 +80,71 @@ function currentOf(t: Track): Candidate {
     disc: t.disc,
     side: t.side,
   };
+}
+
+type RowError = { column: string | null; message: string };
+
+/**
+ * One CSV row read against the track's current values, without the database: the values it
+ * would give the track (cells left out keep theirs), checked with the track form's schema, or
+ * what is wrong with it. Never throws on any cell text.
+ */
+export function checkCsvRow(
+  values: Partial<Record<CsvColumn, string>>,
+  current: Candidate,
+): { candidate: Candidate | null; errors: RowError[] } {
+  const errors: RowError[] = [];
+  const input: Record<string, unknown> = {
+    title: values.title ?? current.title,
+    versionTitle: values.version_title ?? current.versionTitle,
+    artist: values.artist ?? current.artist,
+    isrc: values.isrc ?? current.isrc,
+    iswc: values.iswc ?? current.iswc,
+    explicit: current.explicit,
+    credits: current.credits,
+    disc: current.disc,
+    side: values.side ?? current.side,
+  };
+  if (values.explicit !== undefined) {
+    const explicit = parseYesNo(values.explicit);
+    if (explicit === null) errors.push({ column: 'explicit', message: 'Write yes or no.' });
+    else input.explicit = explicit;
+  }
+  if (values.disc !== undefined) {
+    const disc = values.disc === '' ? 1 : Number(values.disc);
+    input.disc = disc;
+  }
+  if (values.credits !== undefined) {
+    const credits = parseCreditsCell(values.credits);
+    if (!credits.ok) errors.push({ column: 'credits', message: credits.message });
+    else input.credits = credits.credits.map((c) => ({ ...c, isni: c.isni ?? null }));
+  }
+  const checked = trackFieldsSchema.safeParse(input);
+  if (!checked.success) {
+    for (const issue of checked.error.issues) {
+      const [field, index] = issue.path;
+      const column = columnOf[String(field)] ?? null;
+      const where = field === 'credits' && typeof index === 'number' ? `Credit ${index + 1}: ` : '';
+      errors.push({ column, message: `${where}${issue.message}` });
+    }
+    return { candidate: null, errors };
+  }
+  const candidate: Candidate = {
+    ...checked.data,
+    credits: checked.data.credits.map((c) => ({
+      name: c.name,
+      role: c.role,
+      ...(c.isni ? { isni: c.isni } : {}),
+    })),
+  };
+  return { candidate, errors };
+}
+
+/** The fields whose values differ between what a row would write and what is stored. */
+export function changedFields(candidate: Candidate, current: Candidate): (keyof Candidate)[] {
+  return (Object.keys(candidate) as (keyof Candidate)[]).filter(
+    (k) => JSON.stringify(candidate[k] ?? null) !== JSON.stringify(current[k] ?? null),
+  );
 }
 
 /**
@@ -133,50 +198,10 @@ export async function importTrackCsv(
     seenTracks.set(track.id, line);
 
     const current = currentOf(track);
-    const input: Record<string, unknown> = {
-      title: values.title ?? current.title,
-      versionTitle: values.version_title ?? current.versionTitle,
-      artist: values.artist ?? current.artist,
-      isrc: values.isrc ?? current.isrc,
-      iswc: values.iswc ?? current.iswc,
-      explicit: current.explicit,
-      credits: current.credits,
-      disc: current.disc,
-      side: values.side ?? current.side,
-    };
-    if (values.explicit !== undefined) {
-      const explicit = parseYesNo(values.explicit);
-      if (explicit === null) errors.push({ column: 'explicit', message: 'Write yes or no.' });
-      else input.explicit = explicit;
-    }
-    if (values.disc !== undefined) {
-      const disc = values.disc === '' ? 1 : Number(values.disc);
-      input.disc = disc;
-    }
-    if (values.credits !== undefined) {
-      const credits = parseCreditsCell(values.credits);
-      if (!credits.ok) errors.push({ column: 'credits', message: credits.message });
-      else input.credits = credits.credits.map((c) => ({ ...c, isni: c.isni ?? null }));
-    }
-    const checked = trackFieldsSchema.safeParse(input);
-    if (!checked.success) {
-      for (const issue of checked.error.issues) {
-        const [field, index] = issue.path;
-        const column = columnOf[String(field)] ?? null;
-        const where =
-          field === 'credits' && typeof index === 'number' ? `Credit ${index + 1}: ` : '';
-        errors.push({ column, message: `${where}${issue.message}` });
-      }
-      continue;
-    }
-    const candidate: Candidate = {
-      ...checked.data,
-      credits: checked.data.credits.map((c) => ({
-        name: c.name,
-        role: c.role,
-        ...(c.isni ? { isni: c.isni } : {}),
-      })),
-    };
+    const checked = checkCsvRow(values, current);
+    errors.push(...checked.errors);
+    if (!checked.candidate) continue;
+    const { candidate } = checked;
     if (candidate.isrc) {
       const owner = isrcOwners.get(candidate.isrc);
       if (owner && owner.recordingId !== track.recordingId) {
@@ -196,9 +221,7 @@ export async function importTrackCsv(
         }
       }
     }
-    const changed = (Object.keys(candidate) as (keyof Candidate)[]).filter(
-      (k) => JSON.stringify(candidate[k] ?? null) !== JSON.stringify(current[k] ?? null),
-    );
+    const changed = changedFields(candidate, current);
     row.changes = changed.map((field) => ({
       field: columnOf[field] ?? field,
       before: cellOf(field, current[field]),

@@ -69,16 +69,17 @@ export const MAX_NAME_CHARS = 255;
 
 /**
  * The original file name reduced to safe display text: only the last path segment, no
- * control or bidirectional-override characters, whitespace collapsed, at most 255 characters.
- * Returns null when nothing usable is left. Object keys never use it.
+ * control, bidirectional-override or zero-width characters, whitespace collapsed, at most
+ * 255 characters. Returns null when nothing usable is left. Object keys never use it.
  */
 export function sanitizeDisplayName(raw: string): string | null {
   const lastSegment = raw.split(/[\\/]/).pop() ?? '';
   const cleaned = lastSegment
     .normalize('NFC')
     .replace(/\s+/g, ' ')
-    // C0/C1 controls, DEL, and Unicode format characters (bidi overrides, zero-width).
-    .replace(/[\p{Cc}\p{Cf}]/gu, '')
+    // C0/C1 controls, DEL, Unicode format characters (bidi overrides, zero-width) and lone
+    // surrogates (not text; a download header could not encode them).
+    .replace(/[\p{Cc}\p{Cf}\p{Cs}]/gu, '')
     .replace(/ {2,}/g, ' ')
     .trim()
     // A name made only of dots ("..", "...") is a path trick, not a name.

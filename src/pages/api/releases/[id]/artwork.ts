@@ -4,6 +4,7 @@ import { ApiError } from '@/lib/server/errors';
 import { getArtworkInfo, readArtworkBody, uploadArtwork } from '@/lib/server/metadata/artwork';
 import { getRelease } from '@/lib/server/releases';
 import { defineRoute, parseOrThrow } from '@/lib/server/route';
+import { sanitizeDisplayName } from '@/lib/server/uploads/files';
 
 const paramsSchema = z.object({ id: z.string().min(1).max(64) });
 const uploadHeadersSchema = z.object({
@@ -12,6 +13,22 @@ const uploadHeadersSchema = z.object({
   }),
   fileName: z.string().trim().min(1).max(255),
 });
+
+/**
+ * The X-File-Name header is the name percent-encoded (header values are Latin-1). A malformed
+ * escape ("%E0%A4%A") is a 400, not the URIError decodeURIComponent throws.
+ */
+function decodeFileNameHeader(raw: string): string {
+  try {
+    return decodeURIComponent(raw);
+  } catch {
+    throw new ApiError(
+      'invalid_request',
+      'The X-File-Name header is not a valid percent-encoded name.',
+      [{ path: 'x-file-name', message: 'Encode the file name with encodeURIComponent.' }],
+    );
+  }
+}
 
 /** The release's current cover art (facts and an address for the image), or null. */
 export const GET = defineRoute('release:read', async ({ ctx, actor }) => {
@@ -36,14 +53,16 @@ export const POST = defineRoute('metadata:edit', async ({ ctx, actor }) => {
     uploadHeadersSchema,
     {
       contentType: type,
-      fileName: decodeURIComponent(ctx.request.headers.get('x-file-name') ?? 'cover'),
+      fileName: decodeFileNameHeader(ctx.request.headers.get('x-file-name') ?? 'cover'),
     },
     'upload',
   );
   const bytes = await readArtworkBody(ctx.request);
   const artwork = await uploadArtwork(getDb(), actor, id, {
     bytes,
-    originalName: headers.fileName,
+    // Kept for display only (the object key is made of ids), without paths or control and
+    // bidirectional characters, as an uploaded master's name is.
+    originalName: sanitizeDisplayName(headers.fileName) ?? 'cover',
   });
   return Response.json({ artwork }, { status: 201 });
 });
