@@ -141,15 +141,13 @@ for (const signal of ['SIGINT', 'SIGTERM'] as const) {
   });
 }
 
-/** Starts scripts/serve.ts in its own process with the environment prepared here. */
+/** Starts scripts/serve.mjs in its own process with the environment prepared here. */
 async function startServer(port: number): Promise<string> {
   const url = `http://localhost:${port}`;
-  const serve = join(projectRoot, 'scripts/serve.ts');
+  const serve = join(projectRoot, 'scripts/serve.mjs');
   // V8 writes a CPU profile only on a normal exit, so the profiled server exits on SIGTERM.
   const args = cpuProfileDir
     ? [
-        '--import',
-        'tsx',
         '--cpu-prof',
         '--cpu-prof-dir',
         cpuProfileDir,
@@ -157,7 +155,7 @@ async function startServer(port: number): Promise<string> {
         '--eval',
         `process.on('SIGTERM', () => process.exit(0)); await import(${JSON.stringify(pathToFileURL(serve).href)});`,
       ]
-    : ['--import', 'tsx', serve];
+    : [serve];
   const child = spawn(process.execPath, args, {
     cwd: projectRoot,
     env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', BETTER_AUTH_URL: url },

@@ -27,12 +27,14 @@ async function main() {
     mailHttpPort: Number(process.env.MAIL_FAKE_HTTP_PORT ?? 4570),
   });
   let stopping = false;
-  const stop = async (signal: string) => {
+  let app: Awaited<ReturnType<typeof startAppServer>> | null = null;
+  const stop = async (signal: string, code = 0) => {
     if (stopping) return;
     stopping = true;
     console.log(`\n${signal}: stopping Quayside…`);
+    await app?.close();
     await fakes.close();
-    process.exit(0);
+    process.exit(code);
   };
   process.on('SIGINT', () => void stop('SIGINT'));
   process.on('SIGTERM', () => void stop('SIGTERM'));
@@ -55,7 +57,9 @@ async function main() {
     console.log('Building      astro build (sources changed since the last build)…');
     await buildApp();
   }
-  const { url } = await startAppServer({ port, host });
+  app = await startAppServer({ port, host });
+  const { url } = app;
+  app.child.once('exit', (code) => void stop(`The server stopped (exit ${code})`, 1));
   const publicUrl = process.env.BETTER_AUTH_URL ?? url;
   console.log(`\nQuayside is running at ${publicUrl}\n`);
   console.log('Demo sign-ins (password for all: %s)', seeded.password);

@@ -3,12 +3,10 @@
  * local fakes, migrations, demo data, the build and the HTTP server. Paths are resolved
  * from this file, never from the current directory.
  */
-import { spawn } from 'node:child_process';
+import { type ChildProcess, spawn } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import { readdir, stat } from 'node:fs/promises';
-import { createServer, type Server } from 'node:http';
-import type { AddressInfo } from 'node:net';
 import { join, resolve } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { migrate } from 'drizzle-orm/libsql/migrator';
@@ -150,26 +148,39 @@ export function buildApp(): Promise<void> {
 }
 
 /**
- * Serves the built app. Uses our own http.Server so long uploads are not cut off by Node's
- * default 300 s request timeout.
+ * Starts the built app in a child process (`scripts/serve.mjs`, plain JavaScript, so no
+ * TypeScript loader sits on its requests) with this process's environment, and resolves
+ * once it listens. `close()` stops it; so does this process exiting.
  */
 export async function startAppServer(options: { port: number; host: string }): Promise<{
-  server: Server;
   url: string;
+  child: ChildProcess;
+  close(): Promise<void>;
 }> {
-  process.env.ASTRO_NODE_AUTOSTART = 'disabled';
-  const entry = pathToFileURL(join(buildDir, 'server/entry.mjs')).href;
-  const { handler } = (await import(entry)) as {
-    handler: (req: unknown, res: unknown) => void;
-  };
-  const server = createServer((req, res) => handler(req, res));
-  server.requestTimeout = 0;
-  server.headersTimeout = 60_000;
-  server.keepAliveTimeout = 5_000;
-  await new Promise<void>((resolve, reject) => {
-    server.once('error', reject);
-    server.listen(options.port, options.host, () => resolve());
+  const child = spawn(process.execPath, [join(projectRoot, 'scripts/serve.mjs')], {
+    cwd: projectRoot,
+    env: { ...process.env, PORT: String(options.port), HOST: options.host },
+    stdio: ['ignore', 'pipe', 'inherit'],
   });
-  const { port } = server.address() as AddressInfo;
-  return { server, url: `http://localhost:${port}` };
+  const killOnExit = () => child.kill('SIGTERM');
+  process.once('exit', killOnExit);
+  const url = await new Promise<string>((resolveUrl, reject) => {
+    let pending = '';
+    const onData = (chunk: Buffer) => {
+      process.stdout.write(chunk);
+      pending += chunk.toString('utf8');
+      const found = pending.match(/Quayside is serving at (\S+)/);
+      if (found?.[1]) resolveUrl(found[1]);
+    };
+    child.stdout?.on('data', onData);
+    child.once('exit', (code) => reject(new Error(`the server stopped at start (exit ${code})`)));
+  });
+  const close = () =>
+    new Promise<void>((done) => {
+      process.off('exit', killOnExit);
+      if (child.exitCode !== null || child.signalCode !== null) return done();
+      child.once('exit', () => done());
+      child.kill('SIGTERM');
+    });
+  return { url, child, close };
 }

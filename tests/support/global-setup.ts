@@ -57,7 +57,8 @@ export default async function setup(project: TestProject) {
   await migrateDatabase();
   await seedDemoData();
   if (await needsBuild()) await buildApp();
-  const { server, url } = await startAppServer({ port, host: '127.0.0.1' });
+  const app = await startAppServer({ port, host: '127.0.0.1' });
+  const { url } = app;
 
   project.provide('baseUrl', url);
   project.provide('databaseUrl', process.env.DATABASE_URL ?? '');
@@ -86,8 +87,7 @@ export default async function setup(project: TestProject) {
   project.provide('serverEnv', serverEnv);
 
   return async () => {
-    server.closeAllConnections();
-    await new Promise<void>((resolve) => server.close(() => resolve()));
+    await app.close();
     await fakes.close();
     if (!process.env.KEEP_TEST_DATA) rmSync(dataDir, { recursive: true, force: true });
   };

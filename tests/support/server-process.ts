@@ -19,7 +19,7 @@ export function freePort(): Promise<number> {
 }
 
 /**
- * Starts `scripts/serve.ts` in its own process (tsx as a loader, so a kill reaches it).
+ * Starts `scripts/serve.mjs` in its own process.
  * `env` overrides the test server's settings, e.g. another database or S3 endpoint.
  */
 export async function startServerProcess(
@@ -27,7 +27,7 @@ export async function startServerProcess(
 ): Promise<{ child: ChildProcess; url: string; output: () => string }> {
   const port = await freePort();
   const url = `http://localhost:${port}`;
-  const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/serve.ts'], {
+  const child = spawn(process.execPath, ['scripts/serve.mjs'], {
     env: {
       ...process.env,
       ...inject('serverEnv'),
