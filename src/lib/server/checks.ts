@@ -66,29 +66,35 @@ export async function loadCheckInputs(
     .orderBy(asc(tracks.position));
   const recordingIds = trackRows.map((r) => r.recording.id);
 
-  const latest = recordingIds.length
+  // Each recording's newest file, in one query.
+  const newest = db
+    .select({
+      recordingId: audioFiles.recordingId,
+      fileVersion: max(audioFiles.fileVersion).as('newest_version'),
+    })
+    .from(audioFiles)
+    .where(inArray(audioFiles.recordingId, recordingIds))
+    .groupBy(audioFiles.recordingId)
+    .as('newest');
+  const fileRows = recordingIds.length
     ? await db
-        .select({ recordingId: audioFiles.recordingId, fileVersion: max(audioFiles.fileVersion) })
+        .select({
+          recordingId: audioFiles.recordingId,
+          id: audioFiles.id,
+          analysisState: audioFiles.analysisState,
+          analyzedAt: audioFiles.analyzedAt,
+        })
         .from(audioFiles)
-        .where(inArray(audioFiles.recordingId, recordingIds))
-        .groupBy(audioFiles.recordingId)
+        .innerJoin(
+          newest,
+          and(
+            eq(newest.recordingId, audioFiles.recordingId),
+            eq(newest.fileVersion, audioFiles.fileVersion),
+          ),
+        )
     : [];
   const files = new Map<string, { id: string; analysisState: string; analyzedAt: Date | null }>();
-  for (const l of latest) {
-    if (l.fileVersion == null) continue;
-    const [file] = await db
-      .select({
-        id: audioFiles.id,
-        analysisState: audioFiles.analysisState,
-        analyzedAt: audioFiles.analyzedAt,
-      })
-      .from(audioFiles)
-      .where(
-        and(eq(audioFiles.recordingId, l.recordingId), eq(audioFiles.fileVersion, l.fileVersion)),
-      )
-      .limit(1);
-    if (file) files.set(l.recordingId, file);
-  }
+  for (const { recordingId, ...file } of fileRows) files.set(recordingId, file);
 
   const elsewhere = await db
     .select({ id: recordings.id, isrc: recordings.isrc })
