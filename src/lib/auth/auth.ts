@@ -1,5 +1,6 @@
 import { betterAuth } from 'better-auth';
 import { drizzleAdapter } from 'better-auth/adapters/drizzle';
+import { APIError, createAuthMiddleware, isAPIError } from 'better-auth/api';
 import { organization } from 'better-auth/plugins';
 import { createAccessControl } from 'better-auth/plugins/access';
 import { adminAc, defaultStatements, memberAc } from 'better-auth/plugins/organization/access';
@@ -10,6 +11,8 @@ import { enqueueMail, flushOutbox } from '../mail/outbox';
 import { renderInvitationMail } from '../mail/templates';
 import { getEnv } from '../server/env';
 import { roleLabels } from './permissions';
+import { createFixedWindowStore } from './rate-limit-store';
+import { SignInFailureLimiter, signInLimit } from './sign-in-limit';
 
 /**
  * better-auth's own access control only guards its organisation endpoints (we expose none
@@ -26,6 +29,38 @@ const orgRoles = {
 /** Invitations stay open for a week (common practice for workspace invitations). */
 export const invitationLifetimeSeconds = 7 * 24 * 3600;
 
+/**
+ * The request header our middleware fills with the client's address (replacing any value the
+ * client sent), for better-auth's per-address rate limit. Without it better-auth reads only
+ * X-Forwarded-For, finds no address on a direct connection and puts everyone in one bucket.
+ */
+export const clientAddressHeader = 'x-quayside-client-address';
+
+/**
+ * Sign-in attempts one client address may make per minute, successful or not (better-auth's
+ * limiter counts every request). Set far above what people, or the test suite signing in
+ * from 127.0.0.1 (at most about 30 a minute), need; the per-account limit in
+ * ./sign-in-limit.ts is what stops password guessing.
+ */
+export const signInAddressLimit = { window: 60, max: 150 } as const;
+
+/**
+ * Session cookies carry `Secure` (and better-auth's `__Secure-` name prefix) exactly when the
+ * public address is https. Written out so it does not depend on NODE_ENV, better-auth's
+ * fallback. HttpOnly, SameSite=Lax (RFC 6265bis §4.1.2.7) and Path=/ are its defaults.
+ */
+export function usesSecureCookies(publicUrl: string): boolean {
+  return new URL(publicUrl).protocol === 'https:';
+}
+
+const signInFailures = new SignInFailureLimiter(signInLimit);
+const rateLimitStore = createFixedWindowStore();
+
+function signInEmailOf(body: unknown): string | null {
+  const email = (body as { email?: unknown } | undefined)?.email;
+  return typeof email === 'string' ? email : null;
+}
+
 export function createAuth(db: Database) {
   const env = getEnv();
   return betterAuth({
@@ -37,6 +72,40 @@ export function createAuth(db: Database) {
     emailAndPassword: { enabled: true, minPasswordLength: 10, autoSignIn: true },
     session: { expiresIn: 7 * 24 * 3600, updateAge: 24 * 3600 },
     telemetry: { enabled: false },
+    advanced: {
+      useSecureCookies: usesSecureCookies(env.BETTER_AUTH_URL),
+      ipAddress: { ipAddressHeaders: [clientAddressHeader] },
+    },
+    // On in every environment (better-auth's default is production only), kept in memory.
+    rateLimit: {
+      enabled: true,
+      customStorage: rateLimitStore,
+      customRules: { '/sign-in/email': signInAddressLimit },
+    },
+    hooks: {
+      before: createAuthMiddleware(async (ctx) => {
+        if (ctx.path !== '/sign-in/email') return;
+        const email = signInEmailOf(ctx.body);
+        if (!email) return;
+        const retryAfterSeconds = signInFailures.begin(email);
+        if (retryAfterSeconds > 0) {
+          const minutes = Math.ceil(retryAfterSeconds / 60);
+          throw new APIError(
+            'TOO_MANY_REQUESTS',
+            {
+              code: 'TOO_MANY_FAILED_SIGN_INS',
+              message: `Too many failed sign-ins for this account. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}.`,
+            },
+            { 'Retry-After': String(retryAfterSeconds) },
+          );
+        }
+      }),
+      after: createAuthMiddleware(async (ctx) => {
+        if (ctx.path !== '/sign-in/email') return;
+        const email = signInEmailOf(ctx.body);
+        if (email && !isAPIError(ctx.context.returned)) signInFailures.succeeded(email);
+      }),
+    },
     plugins: [
       organization({
         ac,
