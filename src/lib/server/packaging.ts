@@ -35,7 +35,7 @@ import {
 } from '../packaging/documents';
 import { bagName, masterFileName } from '../packaging/naming';
 import type { Finding } from '../specs/types';
-import { getObjectStream, getS3, isStorageError } from '../storage/s3';
+import { getObjectStream, getS3, isStorageError, storageReachable } from '../storage/s3';
 import { activeWaivers } from '../workflow/approval';
 import { recordAudit } from './audit';
 import { getEnv } from './env';
@@ -368,8 +368,9 @@ async function buildPackage(db: Database, row: PackageRow, organizationId: strin
     noteFault(error);
     const detail = error instanceof Error ? error.message : String(error);
     console.error(`[packaging] package ${row.id} failed:`, detail);
+    // A read cut short ends as a bare "aborted" stream; asking the store tells why.
     const message =
-      storageFault !== null
+      storageFault !== null || !(await storageReachable(s3))
         ? 'The file store could not be reached while the package was built; nothing was published. Build it again.'
         : detail;
     await s3.client

@@ -2,6 +2,7 @@ import type { Readable } from 'node:stream';
 import {
   DeleteObjectCommand,
   GetObjectCommand,
+  HeadBucketCommand,
   HeadObjectCommand,
   S3Client,
 } from '@aws-sdk/client-s3';
@@ -123,6 +124,21 @@ export function isStorageError(error: unknown): boolean {
     e = e.cause;
   }
   return false;
+}
+
+/** True when the bucket answers now (within `timeoutMs`); used to explain a failed job. */
+export async function storageReachable(
+  s3: { client: S3Client; bucket: string },
+  timeoutMs = 3000,
+): Promise<boolean> {
+  try {
+    await s3.client.send(new HeadBucketCommand({ Bucket: s3.bucket }), {
+      abortSignal: AbortSignal.timeout(timeoutMs),
+    });
+    return true;
+  } catch {
+    return false;
+  }
 }
 
 /** Deletes the object under `key`; deleting a missing object is not an error. */

@@ -10,7 +10,7 @@ import { Upload } from '@aws-sdk/lib-storage';
 import { and, eq, max } from 'drizzle-orm';
 import type { Database } from '../../db/client';
 import { audioFiles, recordings, releases, tracks, uploads } from '../../db/schema';
-import { deleteObject, getS3, isStorageError } from '../../storage/s3';
+import { deleteObject, getS3, isStorageError, storageReachable } from '../../storage/s3';
 import { recordAudit } from '../audit';
 import { getEnv } from '../env';
 import { ApiError } from '../errors';
@@ -331,7 +331,7 @@ export async function receiveUpload(request: ReceiveRequest): Promise<ReceivedUp
     };
   } catch (error) {
     const unexpected = !(error instanceof UploadStopped) && !controller.signal.aborted;
-    const storageFailed = unexpected && isStorageError(error);
+    const storageFailed = unexpected && (isStorageError(error) || !(await storageReachable(s3)));
     const stopped =
       error instanceof UploadStopped
         ? error
