@@ -109,8 +109,8 @@ beforeAll(async () => {
     upcEan: '2001234500104',
     artwork: false,
     tracks: [
-      { title: 'Ebb', isrc: 'XQFXT2680001', gapBeforeFrames: 150, audio: long },
-      { title: 'Slack', isrc: 'XQFXT2680002', gapBeforeFrames: 150, audio: long },
+      { title: 'Ebb', isrc: 'XQFLT2600001', gapBeforeFrames: 150, audio: long },
+      { title: 'Slack', isrc: 'XQFLT2600002', gapBeforeFrames: 150, audio: long },
     ],
   });
   const blip = cleanTone({ sampleRateHz: 44_100, bitsPerSample: 16, seconds: 0.2, peakDbfs: -12 });
@@ -125,7 +125,7 @@ beforeAll(async () => {
     tracks: Array.from({ length: 40 }, (_, i) => ({
       title: `Mooring ${i + 1}`,
       recording: 'one',
-      isrc: 'XQFXT2680003',
+      isrc: 'XQFLT2600003',
       gapBeforeFrames: 150,
       audio: blip,
     })),
