@@ -1,23 +1,8 @@
-/**
- * Faults, each with real parts: a second server process runs on its own copy of the
- * database (taken with `npm run backup`'s code while the test server runs, and put in
- * place with the restore code), and reaches the S3 and mail fakes through TCP proxies the
- * test can stop and start. After each fault and its recovery nothing is lost or
- * half-written:
- * - the object store stops during an upload: 503, no file row, the old master stays;
- * - the object store stops during packaging: the build fails, no package object, no ready
- *   row, the release stays approved; a retry gives a valid bag;
- * - the mail server is down when a notification is due: the change is kept, the message
- *   waits in the outbox (across a server restart) and is sent when mail is back;
- * - the server is killed while it rewrites a running order: every kill leaves either the
- *   old or the new order, never a mix, and SQLite's integrity check passes.
- */
-import { execFileSync } from 'node:child_process';
-import { mkdtemp, rm, writeFile } from 'node:fs/promises';
+import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { GetObjectCommand, HeadObjectCommand } from '@aws-sdk/client-s3';
+import { HeadObjectCommand } from '@aws-sdk/client-s3';
 import { and, asc, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest';
 import { uploadResultSchema } from '@/lib/api/schemas';
@@ -33,7 +18,7 @@ import {
   tracks,
   uploads,
 } from '@/lib/db/schema';
-import { checkBagRules } from '../support/bagit';
+import { downloadPackageZip, unpackAndVerifyBag } from '../support/bagit';
 import { type FaultProxy, startFaultProxy } from '../support/fault-proxy';
 import { demoEmails, signedIn } from '../support/http';
 import { allMail, waitForMail } from '../support/mail';
@@ -238,23 +223,9 @@ describe('the object store stops', () => {
     const [packaged] = await db.select().from(releases).where(eq(releases.id, packageRelease));
     expect(packaged?.state).toBe('packaged');
 
-    const answer = await s3.client.send(
-      new GetObjectCommand({ Bucket: s3.bucket, Key: ready?.objectKey ?? '' }),
-    );
-    const zip = join(dir, 'package.zip');
-    await writeFile(
-      zip,
-      await (answer.Body as { transformToByteArray(): Promise<Uint8Array> }).transformToByteArray(),
-    );
     // Independent tools: Info-ZIP's test and GNU sha256sum over the BagIt manifests (RFC 8493).
-    expect(execFileSync('unzip', ['-t', zip], { encoding: 'utf8' })).toMatch(/No errors detected/);
-    const out = join(dir, 'package');
-    execFileSync('unzip', ['-q', zip, '-d', out]);
-    const [bag] = execFileSync('ls', [out], { encoding: 'utf8' }).trim().split('\n');
-    const bagDir = join(out, bag ?? '');
-    execFileSync('sha256sum', ['-c', '--strict', 'manifest-sha256.txt'], { cwd: bagDir });
-    execFileSync('sha256sum', ['-c', '--strict', 'tagmanifest-sha256.txt'], { cwd: bagDir });
-    await checkBagRules(bagDir);
+    const zip = await downloadPackageZip(s3, ready?.objectKey ?? '', join(dir, 'package.zip'));
+    await unpackAndVerifyBag(zip, join(dir, 'package'));
   });
 });
 

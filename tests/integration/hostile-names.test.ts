@@ -14,10 +14,10 @@
  *   no backslash and no control character (Debian's unzip lists and tests it).
  */
 import { execFileSync } from 'node:child_process';
-import { mkdtemp, rm, writeFile } from 'node:fs/promises';
+import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { GetObjectCommand, HeadObjectCommand, ListObjectsV2Command } from '@aws-sdk/client-s3';
+import { HeadObjectCommand, ListObjectsV2Command } from '@aws-sdk/client-s3';
 import { eq, inArray } from 'drizzle-orm';
 import { createElement } from 'react';
 import { renderToStaticMarkup } from 'react-dom/server';
@@ -33,6 +33,7 @@ import {
 import { workflowStatusSchema } from '@/lib/api/workflow-schemas';
 import { audioFiles, packages, tracks } from '@/lib/db/schema';
 import { sanitizeDisplayName } from '@/lib/server/uploads/files';
+import { downloadPackageZip } from '../support/bagit';
 import { hostileNames } from '../support/hostile-names';
 import { demoEmails } from '../support/http';
 import { ensureProgram } from '../support/system-packages';
@@ -247,15 +248,7 @@ describe('the package of a release with hostile names', () => {
       await new Promise((r) => setTimeout(r, 200));
     }
     expect(row?.state).toBe('ready');
-    const answer = await s3.client.send(
-      new GetObjectCommand({ Bucket: s3.bucket, Key: row?.objectKey ?? '' }),
-    );
-    const zip = join(dir, 'package.zip');
-    await writeFile(
-      zip,
-      await (answer.Body as { transformToByteArray(): Promise<Uint8Array> }).transformToByteArray(),
-    );
-    expect(execFileSync('unzip', ['-t', zip], { encoding: 'utf8' })).toMatch(/No errors detected/);
+    const zip = await downloadPackageZip(s3, row?.objectKey ?? '', join(dir, 'package.zip'));
     const entries = execFileSync('zipinfo', ['-1', zip], { encoding: 'utf8' }).trim().split('\n');
     const trackCount = (await db.select().from(tracks).where(eq(tracks.releaseId, releaseId)))
       .length;

@@ -3,9 +3,42 @@
  * every payload file listed and nothing listed missing, Payload-Oxum, the tag manifest's
  * coverage. Checksums themselves are verified with GNU coreutils (`sha256sum -c`).
  */
-import { readdir, readFile, stat } from 'node:fs/promises';
+import { execFileSync } from 'node:child_process';
+import { readdir, readFile, stat, writeFile } from 'node:fs/promises';
 import { join } from 'node:path';
+import { GetObjectCommand, type S3Client } from '@aws-sdk/client-s3';
 import { expect } from 'vitest';
+
+/** Saves the package object at `key` to `zipPath` and tests it with Info-ZIP's `unzip -t`. */
+export async function downloadPackageZip(
+  s3: { client: S3Client; bucket: string },
+  key: string,
+  zipPath: string,
+): Promise<string> {
+  const answer = await s3.client.send(new GetObjectCommand({ Bucket: s3.bucket, Key: key }));
+  const body = answer.Body as { transformToByteArray(): Promise<Uint8Array> };
+  await writeFile(zipPath, await body.transformToByteArray());
+  expect(execFileSync('unzip', ['-t', zipPath], { encoding: 'utf8' })).toMatch(
+    /No errors detected/,
+  );
+  return zipPath;
+}
+
+/**
+ * Unpacks the zip into `outDir` and verifies its one bag with independent tools: GNU
+ * sha256sum over both manifests (their format is RFC 8493 §2.1.3), then checkBagRules.
+ * Returns the bag's folder.
+ */
+export async function unpackAndVerifyBag(zipPath: string, outDir: string): Promise<string> {
+  execFileSync('unzip', ['-q', zipPath, '-d', outDir]);
+  const folders = await readdir(outDir);
+  expect(folders).toHaveLength(1);
+  const bagDir = join(outDir, folders[0] ?? '');
+  execFileSync('sha256sum', ['-c', '--strict', 'manifest-sha256.txt'], { cwd: bagDir });
+  execFileSync('sha256sum', ['-c', '--strict', 'tagmanifest-sha256.txt'], { cwd: bagDir });
+  await checkBagRules(bagDir);
+  return bagDir;
+}
 
 export /** Reads bagit.txt/bag-info.txt/manifests and checks what checksums cannot (RFC 8493). */
 async function checkBagRules(bagDir: string): Promise<void> {
