@@ -18,7 +18,6 @@
  */
 import { type ChildProcess, spawn } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
-import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
@@ -27,6 +26,7 @@ import { formatLoadReport, longMasterBytes, runLoad, stopLoadClients } from './l
 import {
   buildApp,
   type Fakes,
+  freePort,
   migrateDatabase,
   needsBuild,
   prepareEnvironment,
@@ -88,18 +88,6 @@ if (withAnalysis) {
     console.error(error instanceof Error ? error.message : error);
     process.exit(2);
   }
-}
-
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const probe = createServer();
-    probe.once('error', reject);
-    probe.listen(0, '127.0.0.1', () => {
-      const address = probe.address();
-      const port = typeof address === 'object' && address ? address.port : 0;
-      probe.close(() => resolve(port));
-    });
-  });
 }
 
 let dataDir: string | null = null;

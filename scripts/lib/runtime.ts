@@ -7,6 +7,7 @@ import { type ChildProcess, spawn } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import { readdir, stat } from 'node:fs/promises';
+import { createServer as createNetServer } from 'node:net';
 import { join, resolve } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { migrate } from 'drizzle-orm/libsql/migrator';
@@ -22,6 +23,19 @@ export interface Fakes {
   s3?: S3Fake;
   mail?: MailFake;
   close(): Promise<void>;
+}
+
+/** A TCP port on 127.0.0.1 that nothing listens on right now. */
+export function freePort(): Promise<number> {
+  return new Promise((resolvePort, reject) => {
+    const probe = createNetServer();
+    probe.once('error', reject);
+    probe.listen(0, '127.0.0.1', () => {
+      const address = probe.address();
+      const port = typeof address === 'object' && address ? address.port : 0;
+      probe.close(() => resolvePort(port));
+    });
+  });
 }
 
 /** Reads the secret kept in the data folder, creating it on first use. */

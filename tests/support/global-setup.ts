@@ -4,12 +4,12 @@
  * on a free port. Tests reach it over HTTP and read the same database file.
  */
 import { mkdtempSync, rmSync } from 'node:fs';
-import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { TestProject } from 'vitest/node';
 import {
   buildApp,
+  freePort,
   migrateDatabase,
   needsBuild,
   prepareEnvironment,
@@ -27,18 +27,6 @@ declare module 'vitest' {
     /** The environment the server runs with, for tests that start a second server process. */
     serverEnv: Record<string, string>;
   }
-}
-
-function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const probe = createServer();
-    probe.once('error', reject);
-    probe.listen(0, '127.0.0.1', () => {
-      const address = probe.address();
-      const port = typeof address === 'object' && address ? address.port : 0;
-      probe.close(() => resolve(port));
-    });
-  });
 }
 
 export default async function setup(project: TestProject) {

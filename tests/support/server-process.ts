@@ -3,20 +3,10 @@
  * database, S3 and mail fakes), for tests that must stop a server abruptly.
  */
 import { type ChildProcess, spawn } from 'node:child_process';
-import { createServer } from 'node:net';
 import { inject } from 'vitest';
+import { freePort } from '../../scripts/lib/runtime';
 
 const started: ChildProcess[] = [];
-
-export function freePort(): Promise<number> {
-  return new Promise((resolve) => {
-    const probe = createServer();
-    probe.listen(0, '127.0.0.1', () => {
-      const address = probe.address();
-      probe.close(() => resolve(typeof address === 'object' && address ? address.port : 0));
-    });
-  });
-}
 
 /**
  * Starts `scripts/serve.mjs` in its own process.
