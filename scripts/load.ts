@@ -16,11 +16,9 @@
  * The same settings as environment variables: LOAD_CONNECTIONS, LOAD_DURATION,
  * LOAD_LONG_FILE_MINUTES, LOAD_NO_ANALYSIS=1. Set QUAYSIDE_BUILD_DIR to build elsewhere.
  */
-import { type ChildProcess, spawn } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
-import { pathToFileURL } from 'node:url';
 import { parseArgs } from 'node:util';
 import { formatLoadReport, longMasterBytes, runLoad, stopLoadClients } from './lib/load';
 import {
@@ -30,8 +28,8 @@ import {
   migrateDatabase,
   needsBuild,
   prepareEnvironment,
-  projectRoot,
   seedDemoData,
+  startAppServer,
 } from './lib/runtime';
 
 const { values } = parseArgs({
@@ -92,21 +90,13 @@ if (withAnalysis) {
 
 let dataDir: string | null = null;
 let fakes: Fakes | null = null;
-let server: ChildProcess | null = null;
+let server: Awaited<ReturnType<typeof startAppServer>> | null = null;
 const serverOutput: string[] = [];
 
 function stopServer(): Promise<void> {
-  const child = server;
+  const running = server;
   server = null;
-  if (!child || child.exitCode !== null || child.signalCode !== null) return Promise.resolve();
-  return new Promise((resolve) => {
-    const force = setTimeout(() => child.kill('SIGKILL'), 5_000);
-    child.once('exit', () => {
-      clearTimeout(force);
-      resolve();
-    });
-    child.kill('SIGTERM');
-  });
+  return running ? running.close() : Promise.resolve();
 }
 
 let cleaning: Promise<void> | null = null;
@@ -129,46 +119,20 @@ for (const signal of ['SIGINT', 'SIGTERM'] as const) {
   });
 }
 
-/** Starts scripts/serve.mjs in its own process with the environment prepared here. */
+/** Starts the built server in its own process, keeping its last 40 lines of output. */
 async function startServer(port: number): Promise<string> {
-  const url = `http://localhost:${port}`;
-  const serve = join(projectRoot, 'scripts/serve.mjs');
-  // V8 writes a CPU profile only on a normal exit, so the profiled server exits on SIGTERM.
-  const args = cpuProfileDir
-    ? [
-        '--cpu-prof',
-        '--cpu-prof-dir',
-        cpuProfileDir,
-        '--input-type=module',
-        '--eval',
-        `process.on('SIGTERM', () => process.exit(0)); await import(${JSON.stringify(pathToFileURL(serve).href)});`,
-      ]
-    : [serve];
-  const child = spawn(process.execPath, args, {
-    cwd: projectRoot,
-    env: { ...process.env, PORT: String(port), HOST: '127.0.0.1', BETTER_AUTH_URL: url },
-    stdio: ['ignore', 'pipe', 'pipe'],
+  server = await startAppServer({
+    port,
+    host: '127.0.0.1',
+    env: { BETTER_AUTH_URL: `http://localhost:${port}` },
+    // serve.mjs exits normally on SIGTERM, which is when V8 writes the profile.
+    nodeArgs: cpuProfileDir ? ['--cpu-prof', '--cpu-prof-dir', cpuProfileDir] : [],
+    onOutput: (text) => {
+      serverOutput.push(...text.split('\n').filter(Boolean));
+      serverOutput.splice(0, Math.max(0, serverOutput.length - 40));
+    },
   });
-  server = child;
-  const keep = (chunk: Buffer) => {
-    serverOutput.push(...chunk.toString('utf8').split('\n').filter(Boolean));
-    serverOutput.splice(0, Math.max(0, serverOutput.length - 40));
-  };
-  child.stdout?.on('data', keep);
-  child.stderr?.on('data', keep);
-  // Up to two minutes: a busy machine can take long to load the built server.
-  for (let i = 0; i < 1200; i++) {
-    if (child.exitCode !== null) break;
-    const ok = await fetch(`${url}/sign-in`)
-      .then((r) => r.ok)
-      .catch(() => false);
-    if (ok) return url;
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  if (child.exitCode === null) throw new Error('the server did not answer within two minutes');
-  // Let its last words arrive before reporting them.
-  await new Promise((r) => setTimeout(r, 200));
-  throw new Error(`the server exited with ${child.exitCode}`);
+  return server.url;
 }
 
 async function main(): Promise<number> {
@@ -202,7 +166,7 @@ async function main(): Promise<number> {
     connections,
     durationSeconds,
     analysis: withAnalysis ? { minutes: longFileMinutes, releaseId: 'rel-tideline' } : null,
-    serverPid: server?.pid,
+    serverPid: server?.child.pid,
     log: (line) => console.log(line),
   });
   console.log(formatLoadReport(result));

@@ -29,6 +29,15 @@ try {
   });
   const address = server.address();
   const bound = typeof address === 'object' && address ? address.port : port;
+  // One request of our own before saying we are ready: it loads the app's modules and starts
+  // its background work (mail retries, recovery of interrupted builds), which the middleware
+  // starts on the first request, so a restarted server with no visitors still sends its mail.
+  const self = host === '0.0.0.0' || host === '::' ? '127.0.0.1' : host;
+  const selfUrl = `http://${self.includes(':') ? `[${self}]` : self}:${bound}/sign-in`;
+  const warm = await fetch(selfUrl).catch((error) => error);
+  if (warm instanceof Error || !warm.ok) {
+    throw new Error(`the app did not answer its first request: ${warm.message ?? warm.status}`);
+  }
   console.log(`Quayside is serving at http://localhost:${bound}`);
   const stop = () => {
     server.closeAllConnections();

@@ -14,6 +14,10 @@ import { resolveSession } from './lib/server/session';
  */
 const headerOptions = { pagePolicy: import.meta.env.MODE !== 'development' };
 
+let publicOrigin: string | undefined;
+/** BETTER_AUTH_URL's origin, read once (the environment does not change while we run). */
+const ourOrigin = () => (publicOrigin ??= new URL(getEnv().BETTER_AUTH_URL).origin);
+
 /** Pages a signed-out visitor may open; everything else sends them to sign-in. */
 const publicPages = [/^\/sign-in\/?$/, /^\/invite\/[^/]+\/?$/, /^\/dev\/mail\/?$/];
 
@@ -39,7 +43,7 @@ export const onRequest = defineMiddleware(async (context, next) => {
       method: context.request.method,
       origin: context.request.headers.get('origin'),
       secFetchSite: context.request.headers.get('sec-fetch-site'),
-      trustedOrigins: [new URL(getEnv().BETTER_AUTH_URL).origin, context.url.origin],
+      trustedOrigins: [ourOrigin(), context.url.origin],
     });
     if (refusal) return applySecurityHeaders(new ApiError('forbidden', refusal).toResponse(), true);
   }

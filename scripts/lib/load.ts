@@ -16,6 +16,7 @@ import {
   uploadResultSchema,
   uploadStatusSchema,
 } from '../../src/lib/api/schemas';
+import { pcmWavHeader } from '../../src/lib/audio/wav-header';
 import type {
   ClientConfig,
   ClientMessage,
@@ -144,25 +145,6 @@ const bytesPerSample = 3;
 const frameBytes = channels * bytesPerSample;
 const loopSeconds = 10;
 
-/** A plain RIFF/WAVE header for 48 kHz 24-bit stereo PCM. */
-function wavHeader(dataBytes: number): Buffer {
-  const header = Buffer.alloc(44);
-  header.write('RIFF', 0, 'latin1');
-  header.writeUInt32LE(36 + dataBytes, 4);
-  header.write('WAVE', 8, 'latin1');
-  header.write('fmt ', 12, 'latin1');
-  header.writeUInt32LE(16, 16);
-  header.writeUInt16LE(1, 20);
-  header.writeUInt16LE(channels, 22);
-  header.writeUInt32LE(sampleRateHz, 24);
-  header.writeUInt32LE(sampleRateHz * frameBytes, 28);
-  header.writeUInt16LE(frameBytes, 32);
-  header.writeUInt16LE(bytesPerSample * 8, 34);
-  header.write('data', 36, 'latin1');
-  header.writeUInt32LE(dataBytes, 40);
-  return header;
-}
-
 /**
  * Ten seconds of a slowly pulsing two-note chord, a little different left and right, peaking
  * near −6 dBFS. Every partial and the pulse complete whole cycles in ten seconds, so the loop
@@ -202,7 +184,7 @@ export function longMasterBytes(minutes: number): number {
 /** The master as chunks, generated as they are sent: never on disk, never whole in memory. */
 function* generateLongMaster(minutes: number): Generator<Buffer> {
   const dataBytes = longMasterBytes(minutes) - 44;
-  yield wavHeader(dataBytes);
+  yield pcmWavHeader({ sampleRateHz, bits: 24, channels, dataBytes });
   const loop = chordLoop();
   let left = dataBytes;
   while (left > 0) {

@@ -163,37 +163,51 @@ export function buildApp(): Promise<void> {
 
 /**
  * Starts the built app in a child process (`scripts/serve.mjs`, plain JavaScript, so no
- * TypeScript loader sits on its requests) with this process's environment, and resolves
- * once it listens. `close()` stops it; so does this process exiting.
+ * TypeScript loader sits on its requests) with this process's environment plus `env`, and
+ * resolves once it listens. Its output goes to this process's, or to `onOutput`. `close()`
+ * stops it (SIGTERM, then SIGKILL after 5 s); so does this process exiting.
  */
-export async function startAppServer(options: { port: number; host: string }): Promise<{
-  url: string;
-  child: ChildProcess;
-  close(): Promise<void>;
-}> {
-  const child = spawn(process.execPath, [join(projectRoot, 'scripts/serve.mjs')], {
-    cwd: projectRoot,
-    env: { ...process.env, PORT: String(options.port), HOST: options.host },
-    stdio: ['ignore', 'pipe', 'inherit'],
-  });
+export async function startAppServer(options: {
+  port: number;
+  host: string;
+  env?: Record<string, string>;
+  /** Extra `node` flags, e.g. `--cpu-prof`. */
+  nodeArgs?: string[];
+  onOutput?: (text: string) => void;
+}): Promise<{ url: string; child: ChildProcess; close(): Promise<void> }> {
+  const child = spawn(
+    process.execPath,
+    [...(options.nodeArgs ?? []), join(projectRoot, 'scripts/serve.mjs')],
+    {
+      cwd: projectRoot,
+      env: { ...process.env, ...options.env, PORT: String(options.port), HOST: options.host },
+      stdio: ['ignore', 'pipe', options.onOutput ? 'pipe' : 'inherit'],
+    },
+  );
   const killOnExit = () => child.kill('SIGTERM');
   process.once('exit', killOnExit);
+  child.once('exit', () => process.off('exit', killOnExit));
+  const show = options.onOutput ?? ((text: string) => process.stdout.write(text));
+  child.stderr?.on('data', (chunk: Buffer) => show(chunk.toString('utf8')));
   const url = await new Promise<string>((resolveUrl, reject) => {
     let pending = '';
-    const onData = (chunk: Buffer) => {
-      process.stdout.write(chunk);
-      pending += chunk.toString('utf8');
+    child.stdout?.on('data', (chunk: Buffer) => {
+      const text = chunk.toString('utf8');
+      show(text);
+      pending += text;
       const found = pending.match(/Quayside is serving at (\S+)/);
       if (found?.[1]) resolveUrl(found[1]);
-    };
-    child.stdout?.on('data', onData);
+    });
     child.once('exit', (code) => reject(new Error(`the server stopped at start (exit ${code})`)));
   });
   const close = () =>
     new Promise<void>((done) => {
-      process.off('exit', killOnExit);
       if (child.exitCode !== null || child.signalCode !== null) return done();
-      child.once('exit', () => done());
+      const force = setTimeout(() => child.kill('SIGKILL'), 5_000);
+      child.once('exit', () => {
+        clearTimeout(force);
+        done();
+      });
       child.kill('SIGTERM');
     });
   return { url, child, close };

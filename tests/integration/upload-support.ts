@@ -3,6 +3,7 @@ import { request as httpRequest } from 'node:http';
 import { eq, inArray } from 'drizzle-orm';
 import { expect, inject } from 'vitest';
 import { type UploadStatus, uploadStatusSchema } from '@/lib/api/schemas';
+import { pcmWavHeader } from '@/lib/audio/wav-header';
 import { createDatabase } from '@/lib/db/client';
 import { recordings, releaseProfiles, releases, tracks } from '@/lib/db/schema';
 import { createS3Client } from '@/lib/storage/s3';
@@ -25,30 +26,7 @@ export function testS3() {
 }
 
 /** A canonical 44-byte WAV header for PCM integer audio. */
-export function wavHeader(options: {
-  sampleRateHz: number;
-  bits: 16 | 24;
-  channels: number;
-  dataBytes: number;
-}): Buffer {
-  const { sampleRateHz, bits, channels, dataBytes } = options;
-  const blockAlign = channels * (bits / 8);
-  const header = Buffer.alloc(44);
-  header.write('RIFF', 0, 'latin1');
-  header.writeUInt32LE(Math.min(0xffffffff, 36 + dataBytes), 4);
-  header.write('WAVE', 8, 'latin1');
-  header.write('fmt ', 12, 'latin1');
-  header.writeUInt32LE(16, 16);
-  header.writeUInt16LE(1, 20);
-  header.writeUInt16LE(channels, 22);
-  header.writeUInt32LE(sampleRateHz, 24);
-  header.writeUInt32LE(sampleRateHz * blockAlign, 28);
-  header.writeUInt16LE(blockAlign, 32);
-  header.writeUInt16LE(bits, 34);
-  header.write('data', 36, 'latin1');
-  header.writeUInt32LE(Math.min(0xffffffff, dataBytes), 40);
-  return header;
-}
+export const wavHeader = pcmWavHeader;
 
 /**
  * PCM frames of a sine (same in every channel) at `peakDbfs`, from frame `from` for `count`

@@ -2,45 +2,33 @@
  * A second server process running the built app with the test server's environment (same
  * database, S3 and mail fakes), for tests that must stop a server abruptly.
  */
-import { type ChildProcess, spawn } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
 import { inject } from 'vitest';
-import { freePort } from '../../scripts/lib/runtime';
+import { freePort, startAppServer } from '../../scripts/lib/runtime';
 
 const started: ChildProcess[] = [];
 
 /**
- * Starts `scripts/serve.mjs` in its own process.
- * `env` overrides the test server's settings, e.g. another database or S3 endpoint.
+ * Starts `scripts/serve.mjs` in its own process. `env` overrides the test server's settings,
+ * e.g. another database or S3 endpoint. `output()` is everything it printed so far, for
+ * tests that check its logs or explain its failure.
  */
 export async function startServerProcess(
   options: { env?: Record<string, string> } = {},
 ): Promise<{ child: ChildProcess; url: string; output: () => string }> {
   const port = await freePort();
   const url = `http://localhost:${port}`;
-  const child = spawn(process.execPath, ['scripts/serve.mjs'], {
-    env: {
-      ...process.env,
-      ...inject('serverEnv'),
-      ...options.env,
-      PORT: String(port),
-      BETTER_AUTH_URL: url,
+  let printed = '';
+  const app = await startAppServer({
+    port,
+    host: '127.0.0.1',
+    env: { ...inject('serverEnv'), ...options.env, BETTER_AUTH_URL: url },
+    onOutput: (text) => {
+      printed += text;
     },
-    stdio: ['ignore', 'pipe', 'pipe'],
   });
-  started.push(child);
-  // What the server printed, for tests that check its logs or explain its failure.
-  const printed: Buffer[] = [];
-  child.stdout?.on('data', (chunk: Buffer) => printed.push(chunk));
-  child.stderr?.on('data', (chunk: Buffer) => printed.push(chunk));
-  const output = () => Buffer.concat(printed).toString('utf8');
-  for (let i = 0; i < 150; i++) {
-    const ok = await fetch(`${url}/sign-in`)
-      .then((r) => r.ok)
-      .catch(() => false);
-    if (ok) return { child, url, output };
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  throw new Error('the second server did not start');
+  started.push(app.child);
+  return { child: app.child, url, output: () => printed };
 }
 
 /** Stops a server process at once, as a crash would. */

@@ -4,6 +4,7 @@
  * 44-byte header with a plain `fmt ` chunk).
  */
 import { open } from 'node:fs/promises';
+import { pcmWavHeader } from '@/lib/audio/wav-header';
 
 export interface WavSpec {
   sampleRateHz: number;
@@ -19,20 +20,12 @@ export interface WavSpec {
 export async function writeWavFile(path: string, spec: WavSpec): Promise<number> {
   const bytesPerSample = spec.bitsPerSample / 8;
   const dataBytes = spec.frames * spec.channels * bytesPerSample;
-  const header = Buffer.alloc(44);
-  header.write('RIFF', 0, 'latin1');
-  header.writeUInt32LE(36 + dataBytes, 4);
-  header.write('WAVE', 8, 'latin1');
-  header.write('fmt ', 12, 'latin1');
-  header.writeUInt32LE(16, 16);
-  header.writeUInt16LE(1, 20);
-  header.writeUInt16LE(spec.channels, 22);
-  header.writeUInt32LE(spec.sampleRateHz, 24);
-  header.writeUInt32LE(spec.sampleRateHz * spec.channels * bytesPerSample, 28);
-  header.writeUInt16LE(spec.channels * bytesPerSample, 32);
-  header.writeUInt16LE(spec.bitsPerSample, 34);
-  header.write('data', 36, 'latin1');
-  header.writeUInt32LE(dataBytes, 40);
+  const header = pcmWavHeader({
+    sampleRateHz: spec.sampleRateHz,
+    bits: spec.bitsPerSample,
+    channels: spec.channels,
+    dataBytes,
+  });
 
   const contentBits = spec.contentBits ?? spec.bitsPerSample;
   const fullScale = 2 ** (contentBits - 1) - 1;
