@@ -36,6 +36,17 @@ export default function SignInForm({ next }: { next: string | null }) {
       return;
     }
     if (!response.ok) {
+      if (response.status === 429) {
+        // The server says which limit was hit and for how long (better-auth's { message }).
+        const body = (await response.json().catch(() => null)) as { message?: unknown } | null;
+        const seconds = Number(response.headers.get('Retry-After'));
+        setFailure(
+          typeof body?.message === 'string' && body.message
+            ? body.message
+            : `Too many sign-in attempts. Try again in ${Math.max(1, Math.ceil(seconds / 60) || 1)} minute(s).`,
+        );
+        return;
+      }
       setFailure(
         response.status === 401
           ? 'That e-mail and password do not match an account.'

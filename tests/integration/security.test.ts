@@ -320,6 +320,29 @@ describe('security headers', () => {
       await session?.close();
     });
 
+    it('a locked-out account is told why and for how long in the sign-in form', async () => {
+      // No such account: unknown addresses are counted too, so no demo account is touched.
+      const email = 'locked-form@brackwater.test';
+      const attacker = new Client();
+      for (let i = 0; i < signInLimit.maxFailures; i++) {
+        expect((await signInRequest(attacker, email, `wrong-password-${i}`)).status).toBe(401);
+      }
+      const { context, page } = await newPage(session.browser);
+      try {
+        await page.goto('/sign-in');
+        await page.getByRole('button', { name: 'Sign in' }).waitFor();
+        await page.getByLabel('E-mail').fill(email);
+        await page.getByLabel('Password').fill('wrong-once-more');
+        await page.getByRole('button', { name: 'Sign in' }).click();
+        const alert = page.getByText(/Too many failed sign-ins for this account/);
+        await alert.waitFor({ timeout: 10_000 });
+        expect(await alert.textContent()).toMatch(/Try again in 15 minutes/);
+        await page.screenshot({ path: `${screenshotDir}/sign-in-locked.png` });
+      } finally {
+        await context.close();
+      }
+    });
+
     it('the main pages, signed in, raise no CSP violation and their islands work', async () => {
       const engineer = await signedIn(demoEmails.engineer);
       const release = releaseDetailSchema.parse(
