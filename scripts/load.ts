@@ -8,7 +8,10 @@
  * JSON (speed is reported, not asserted). Everything is removed at the end, also on Ctrl-C.
  *
  *   npm run load -- [--connections 50] [--duration 30] [--long-file-minutes 60] [--no-analysis]
- *                    [--cpu-prof DIR]
+ *                    [--no-read-cache] [--cpu-prof DIR]
+ *
+ * `--no-read-cache` starts the server with QUAYSIDE_READ_CACHE=off, so every request reads the
+ * database (to see what the read caches are worth).
  *
  * `--cpu-prof DIR` writes a V8 CPU profile of the server process into DIR when it stops
  * (open it in Chrome DevTools or speedscope).
@@ -38,6 +41,7 @@ const { values } = parseArgs({
     duration: { type: 'string' },
     'long-file-minutes': { type: 'string' },
     'no-analysis': { type: 'boolean' },
+    'no-read-cache': { type: 'boolean' },
     'cpu-prof': { type: 'string' },
     help: { type: 'boolean', short: 'h' },
   },
@@ -45,7 +49,7 @@ const { values } = parseArgs({
 
 if (values.help) {
   console.log(
-    'npm run load -- [--connections 50] [--duration 30] [--long-file-minutes 60] [--no-analysis] [--cpu-prof DIR]',
+    'npm run load -- [--connections 50] [--duration 30] [--long-file-minutes 60] [--no-analysis] [--no-read-cache] [--cpu-prof DIR]',
   );
   process.exit(0);
 }
@@ -79,6 +83,7 @@ const longFileMinutes = positiveNumber(
 );
 const cpuProfileDir = values['cpu-prof'] ? resolve(values['cpu-prof']) : null;
 const withAnalysis = !(values['no-analysis'] || process.env.LOAD_NO_ANALYSIS === '1');
+const readCache = values['no-read-cache'] ? 'off' : 'on';
 if (withAnalysis) {
   try {
     longMasterBytes(longFileMinutes);
@@ -124,7 +129,7 @@ async function startServer(port: number): Promise<string> {
   server = await startAppServer({
     port,
     host: '127.0.0.1',
-    env: { BETTER_AUTH_URL: `http://localhost:${port}` },
+    env: { BETTER_AUTH_URL: `http://localhost:${port}`, QUAYSIDE_READ_CACHE: readCache },
     // serve.mjs exits normally on SIGTERM, which is when V8 writes the profile.
     nodeArgs: cpuProfileDir ? ['--cpu-prof', '--cpu-prof-dir', cpuProfileDir] : [],
     onOutput: (text) => {
@@ -157,7 +162,7 @@ async function main(): Promise<number> {
     await buildApp();
   }
   const url = await startServer(port);
-  console.log(`Server        ${url} (its own process)`);
+  console.log(`Server        ${url} (its own process; read caches ${readCache})`);
 
   if (cpuProfileDir)
     console.log(`CPU profile   of the server, into ${cpuProfileDir} when it stops`);

@@ -41,6 +41,11 @@ const envSchema = z.object({
     .int()
     .min(100)
     .default(15_000),
+  /**
+   * `off` turns the in-memory read caches off (resolved sessions and the release pages' GET
+   * answers, see read-cache.ts): every request then reads the database. For comparisons.
+   */
+  QUAYSIDE_READ_CACHE: z.enum(['on', 'off']).default('on'),
   /** HTTP address of our local mail fake; when set, the sent-mail page reads from it. */
   MAIL_FAKE_URL: z.url().optional(),
 });

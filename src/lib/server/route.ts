@@ -2,6 +2,7 @@ import type { APIContext, APIRoute } from 'astro';
 import type { z } from 'zod';
 import { can, type Permission, type Role } from '../auth/permissions';
 import { ApiError } from './errors';
+import { appDataVersion, createReadCache } from './read-cache';
 
 export interface Actor {
   userId: string;
@@ -74,6 +75,38 @@ async function respond(run: () => Promise<Response> | Response): Promise<Respons
       'Something went wrong on our side; nothing was changed.',
     ).toResponse();
   }
+}
+
+/**
+ * Serialised GET answers of the pages' read endpoints, by who asks and what (see
+ * read-cache.ts: kept until the database changes or 5 s pass).
+ */
+const answers = createReadCache<{ body: string }>({
+  maxEntries: 2000,
+  ttlMs: 5_000,
+  version: appDataVersion,
+});
+
+/**
+ * Answers a GET with `compute()`'s JSON, from the read cache when nothing was committed since it
+ * was computed for this same user, organisation, role and URL. `liveTag` names state outside
+ * the database that the answer shows (it must change when that state does). Only answers that
+ * depend on nothing else may use this; errors thrown by `compute` are never cached.
+ */
+export async function cachedJson(
+  { ctx, actor }: RouteContext,
+  compute: () => Promise<unknown>,
+  options: { liveTag?: string; headers?: Record<string, string> } = {},
+): Promise<Response> {
+  const key = [actor.userId, actor.organizationId, actor.role, ctx.url.pathname, ctx.url.search];
+  const { body } = await answers.get(
+    key.join('\u0000'),
+    async () => ({ body: JSON.stringify(await compute()) }),
+    options.liveTag,
+  );
+  return new Response(body, {
+    headers: { 'content-type': 'application/json', ...options.headers },
+  });
 }
 
 /** Parses `value` with `schema` or throws a 400 listing each problem. */

@@ -13,6 +13,7 @@ import type { Database } from '../../db/client';
 import { audioFiles, uploads } from '../../db/schema';
 import { getS3 } from '../../storage/s3';
 import { rerunChecksAfterUpload } from '../checks';
+import { createProgressBoard } from './analysis-progress';
 
 // Two analyses at once: the engine's pool has min(2, cores) threads and a stream uses one.
 const MAX_CONCURRENT = 2;
@@ -21,12 +22,7 @@ const MAX_CONCURRENT = 2;
 const BASE_TIMEOUT_MS = 60_000;
 const MS_PER_BYTE = 1000 / 4e6;
 
-interface Progress {
-  bytesDone: number;
-  bytesTotal: number;
-}
-
-const progressById = new Map<string, Progress>();
+const progressById = createProgressBoard();
 const queued: string[] = [];
 const queuedSet = new Set<string>();
 let active = 0;
@@ -41,11 +37,14 @@ export function markUploadActive(uploadId: string, isActive: boolean): void {
   else activeUploads.delete(uploadId);
 }
 
+/** A tag for the analysis state kept in memory: answers showing it are cached by it. */
+export function analysisStateTag(): string {
+  return progressById.tag();
+}
+
 /** Fraction 0…1 of an analysis under way in this process, or null. */
 export function getAnalysisProgress(audioFileId: string): number | null {
-  const progress = progressById.get(audioFileId);
-  if (!progress) return null;
-  return progress.bytesTotal > 0 ? Math.min(1, progress.bytesDone / progress.bytesTotal) : 0;
+  return progressById.fraction(audioFileId);
 }
 
 /** Queues the analysis of a stored file (idempotent while it waits). */

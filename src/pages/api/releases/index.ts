@@ -1,7 +1,7 @@
 import { getDb } from '@/lib/db/client';
 import { listReleases } from '@/lib/server/releases';
-import { defineRoute } from '@/lib/server/route';
+import { cachedJson, defineRoute } from '@/lib/server/route';
 
-export const GET = defineRoute('release:list', async ({ actor }) => {
-  return Response.json({ releases: await listReleases(getDb(), actor) });
-});
+export const GET = defineRoute('release:list', async (rc) =>
+  cachedJson(rc, async () => ({ releases: await listReleases(getDb(), rc.actor) })),
+);

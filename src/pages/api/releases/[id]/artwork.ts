@@ -3,7 +3,7 @@ import { getDb } from '@/lib/db/client';
 import { ApiError } from '@/lib/server/errors';
 import { getArtworkInfo, readArtworkBody, uploadArtwork } from '@/lib/server/metadata/artwork';
 import { getRelease } from '@/lib/server/releases';
-import { defineRoute, parseOrThrow } from '@/lib/server/route';
+import { cachedJson, defineRoute, parseOrThrow } from '@/lib/server/route';
 import { sanitizeDisplayName } from '@/lib/server/uploads/files';
 
 const paramsSchema = z.object({ id: z.string().min(1).max(64) });
@@ -31,12 +31,15 @@ function decodeFileNameHeader(raw: string): string {
 }
 
 /** The release's current cover art (facts and an address for the image), or null. */
-export const GET = defineRoute('release:read', async ({ ctx, actor }) => {
-  const { id } = parseOrThrow(paramsSchema, ctx.params, 'release address');
-  if (!(await getRelease(getDb(), actor, id))) {
-    throw new ApiError('not_found', 'No release with that id is visible to you.');
-  }
-  return Response.json({ artwork: await getArtworkInfo(getDb(), id) });
+export const GET = defineRoute('release:read', async (rc) => {
+  const { id } = parseOrThrow(paramsSchema, rc.ctx.params, 'release address');
+  // Its image address is signed for minutes; the cache keeps an answer for seconds.
+  return cachedJson(rc, async () => {
+    if (!(await getRelease(getDb(), rc.actor, id))) {
+      throw new ApiError('not_found', 'No release with that id is visible to you.');
+    }
+    return { artwork: await getArtworkInfo(getDb(), id) };
+  });
 });
 
 /** Uploads new cover art: the body is the image; X-File-Name carries its name. */

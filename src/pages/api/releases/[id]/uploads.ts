@@ -1,8 +1,8 @@
 import { z } from 'zod';
 import { getDb } from '@/lib/db/client';
 import { ApiError } from '@/lib/server/errors';
-import { defineRoute, parseOrThrow } from '@/lib/server/route';
-import { resumeInterruptedWork } from '@/lib/server/uploads/analysis-queue';
+import { cachedJson, defineRoute, parseOrThrow } from '@/lib/server/route';
+import { analysisStateTag, resumeInterruptedWork } from '@/lib/server/uploads/analysis-queue';
 import { findOwnRelease, getUploadStatus } from '@/lib/server/uploads/queries';
 import { maxUploadBytes, receiveUpload } from '@/lib/server/uploads/receive';
 
@@ -17,16 +17,21 @@ const uploadQuerySchema = z.object({
 const contentLengthSchema = z.coerce.number().int().nonnegative();
 
 /** Each track's current file, analysis state and progress, and the recent uploads. */
-export const GET = defineRoute('audio:upload', async ({ ctx, actor }) => {
-  const { id } = parseOrThrow(paramsSchema, ctx.params, 'release address');
+export const GET = defineRoute('audio:upload', async (rc) => {
+  const { id } = parseOrThrow(paramsSchema, rc.ctx.params, 'release address');
   const db = getDb();
   await resumeInterruptedWork(db);
-  if (!(await findOwnRelease(db, actor, id))) {
-    throw new ApiError('not_found', 'No release with that id is visible to you.');
-  }
-  return Response.json(await getUploadStatus(db, id, maxUploadBytes()), {
-    headers: { 'cache-control': 'no-store' },
-  });
+  return cachedJson(
+    rc,
+    async () => {
+      if (!(await findOwnRelease(db, rc.actor, id))) {
+        throw new ApiError('not_found', 'No release with that id is visible to you.');
+      }
+      return getUploadStatus(db, id, maxUploadBytes());
+    },
+    // Analysis progress is kept in memory, not in the database.
+    { liveTag: analysisStateTag(), headers: { 'cache-control': 'no-store' } },
+  );
 });
 
 /**

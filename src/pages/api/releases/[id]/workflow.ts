@@ -1,10 +1,10 @@
 import { getDb } from '@/lib/db/client';
 import { releaseParams } from '@/lib/server/params';
-import { defineRoute, parseOrThrow } from '@/lib/server/route';
+import { cachedJson, defineRoute, parseOrThrow } from '@/lib/server/route';
 import { getWorkflowStatus } from '@/lib/server/workflow';
 
 /** Sign-offs, blockers, waivers, packages and shares of the release. */
-export const GET = defineRoute('finding:read', async ({ ctx, actor }) => {
-  const { id } = parseOrThrow(releaseParams, ctx.params, 'release address');
-  return Response.json(await getWorkflowStatus(getDb(), actor, id));
+export const GET = defineRoute('finding:read', async (rc) => {
+  const { id } = parseOrThrow(releaseParams, rc.ctx.params, 'release address');
+  return cachedJson(rc, () => getWorkflowStatus(getDb(), rc.actor, id));
 });
