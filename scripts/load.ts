@@ -8,7 +8,11 @@
  * JSON (speed is reported, not asserted). Everything is removed at the end, also on Ctrl-C.
  *
  *   npm run load -- [--connections 50] [--duration 30] [--long-file-minutes 60] [--no-analysis]
- *                    [--no-read-cache] [--cpu-prof DIR]
+ *                    [--writes-per-second 0] [--no-read-cache] [--cpu-prof DIR]
+ *
+ * `--writes-per-second N` has the engineer run the checks of a release up to N times a second
+ * during the load (default 0, none): each run is a commit, after which every cached answer is
+ * recomputed.
  *
  * `--no-read-cache` starts the server with QUAYSIDE_READ_CACHE=off, so every request reads the
  * database (to see what the read caches are worth).
@@ -42,6 +46,7 @@ const { values } = parseArgs({
     'long-file-minutes': { type: 'string' },
     'no-analysis': { type: 'boolean' },
     'no-read-cache': { type: 'boolean' },
+    'writes-per-second': { type: 'string' },
     'cpu-prof': { type: 'string' },
     help: { type: 'boolean', short: 'h' },
   },
@@ -49,7 +54,7 @@ const { values } = parseArgs({
 
 if (values.help) {
   console.log(
-    'npm run load -- [--connections 50] [--duration 30] [--long-file-minutes 60] [--no-analysis] [--no-read-cache] [--cpu-prof DIR]',
+    'npm run load -- [--connections 50] [--duration 30] [--long-file-minutes 60] [--no-analysis] [--writes-per-second 0] [--no-read-cache] [--cpu-prof DIR]',
   );
   process.exit(0);
 }
@@ -84,6 +89,11 @@ const longFileMinutes = positiveNumber(
 const cpuProfileDir = values['cpu-prof'] ? resolve(values['cpu-prof']) : null;
 const withAnalysis = !(values['no-analysis'] || process.env.LOAD_NO_ANALYSIS === '1');
 const readCache = values['no-read-cache'] ? 'off' : 'on';
+const writesRaw = values['writes-per-second'] ?? process.env.LOAD_WRITES_PER_SECOND;
+const writesPerSecond =
+  writesRaw === undefined || writesRaw === '0'
+    ? 0
+    : positiveNumber('--writes-per-second', writesRaw, 0);
 if (withAnalysis) {
   try {
     longMasterBytes(longFileMinutes);
@@ -171,6 +181,7 @@ async function main(): Promise<number> {
     connections,
     durationSeconds,
     analysis: withAnalysis ? { minutes: longFileMinutes, releaseId: 'rel-tideline' } : null,
+    writesPerSecond,
     serverPid: server?.child.pid,
     log: (line) => console.log(line),
   });

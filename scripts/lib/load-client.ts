@@ -6,7 +6,15 @@
  * latency is kept, so the percentiles are exact (autocannon's own histogram has no p95).
  */
 import autocannon from 'autocannon';
-import { describeRequest, type PlannedRequest, validateAnswer } from './load-plan';
+import {
+  describeRequest,
+  type LatencySummary,
+  type PlannedRequest,
+  summarizeLatency,
+  validateAnswer,
+} from './load-plan';
+
+export type { LatencySummary };
 
 export interface ClientRequest extends PlannedRequest {
   cookie: string;
@@ -19,15 +27,6 @@ export interface ClientConfig {
   requests: ClientRequest[];
   /** Validate the first few answers of each request, then every n-th (1 = all). */
   validateEvery: number;
-}
-
-export interface LatencySummary {
-  count: number;
-  meanMs: number;
-  p50Ms: number;
-  p95Ms: number;
-  p99Ms: number;
-  maxMs: number;
 }
 
 export interface RequestStats {
@@ -68,22 +67,6 @@ interface PlanContext {
 
 const validateFirst = 3;
 const maxProblems = 5;
-
-/** Nearest-rank percentiles of `values` (sorted in place). */
-export function summarizeLatency(values: number[]): LatencySummary {
-  values.sort((a, b) => a - b);
-  const n = values.length;
-  const rank = (p: number) => (n ? (values[Math.max(0, Math.ceil((p / 100) * n) - 1)] ?? 0) : 0);
-  const sum = values.reduce((a, b) => a + b, 0);
-  return {
-    count: n,
-    meanMs: n ? sum / n : 0,
-    p50Ms: rank(50),
-    p95Ms: rank(95),
-    p99Ms: rank(99),
-    maxMs: n ? (values[n - 1] ?? 0) : 0,
-  };
-}
 
 function runClient(config: ClientConfig): Promise<ClientSummary> {
   const stats: RequestStats[] = config.requests.map(() => ({

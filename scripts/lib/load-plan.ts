@@ -195,3 +195,28 @@ export function validateAnswer(request: PlannedRequest, body: string): string | 
 export function describeRequest(request: PlannedRequest): string {
   return `GET ${request.path} as ${request.user}`;
 }
+
+export interface LatencySummary {
+  count: number;
+  meanMs: number;
+  p50Ms: number;
+  p95Ms: number;
+  p99Ms: number;
+  maxMs: number;
+}
+
+/** Nearest-rank percentiles of `values` (sorted in place). */
+export function summarizeLatency(values: number[]): LatencySummary {
+  values.sort((a, b) => a - b);
+  const n = values.length;
+  const rank = (p: number) => (n ? (values[Math.max(0, Math.ceil((p / 100) * n) - 1)] ?? 0) : 0);
+  const sum = values.reduce((a, b) => a + b, 0);
+  return {
+    count: n,
+    meanMs: n ? sum / n : 0,
+    p50Ms: rank(50),
+    p95Ms: rank(95),
+    p99Ms: rank(99),
+    maxMs: n ? (values[n - 1] ?? 0) : 0,
+  };
+}

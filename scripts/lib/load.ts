@@ -17,22 +17,20 @@ import {
   uploadStatusSchema,
 } from '../../src/lib/api/schemas';
 import { pcmWavHeader } from '../../src/lib/audio/wav-header';
-import type {
-  ClientConfig,
-  ClientMessage,
-  ClientRequest,
-  ClientSummary,
-  LatencySummary,
-} from './load-client';
+import { can } from '../../src/lib/auth/permissions';
+import type { ClientConfig, ClientMessage, ClientRequest, ClientSummary } from './load-client';
 import {
   demoLoadPassword,
   describeRequest,
   type EndpointName,
   endpoints,
+  type LatencySummary,
   type LoadUser,
+  labelReleaseIds,
   loadUsers,
   type PlannedRequest,
   planRequests,
+  summarizeLatency,
   validateAnswer,
 } from './load-plan';
 
@@ -50,6 +48,14 @@ export interface LoadOptions {
   sharedReleases?: string[];
   /** Validate the first answers of each request, then every n-th (default 100; 1 = all). */
   validateEvery?: number;
+  /**
+   * Writes during the load: this many check runs per second (POST …/checks by the engineer,
+   * over the label's releases). Each one is a commit, so every cached answer is computed
+   * afresh after it. Default 0 (none): the measured scenario is read-only.
+   */
+  writesPerSecond?: number;
+  /** Releases whose checks the writer runs (default: `labelReleases`). */
+  writeReleases?: string[];
   /** The server's process id, to report its CPU time during the load (Linux /proc). */
   serverPid?: number;
   log?: (line: string) => void;
@@ -90,6 +96,16 @@ export interface EndpointReport {
   latency: LatencySummary | null;
 }
 
+export interface WriteReport {
+  perSecond: number;
+  /** What was written, e.g. "check runs (POST /api/releases/:id/checks)". */
+  what: string;
+  sent: number;
+  /** Answers by status code. */
+  statusCounts: Record<string, number>;
+  latency: LatencySummary | null;
+}
+
 export interface LoadResult {
   connections: number;
   durationSeconds: number;
@@ -98,6 +114,7 @@ export interface LoadResult {
   client: ClientSummary;
   endpoints: EndpointReport[];
   analysis: AnalysisReport | null;
+  writes: WriteReport | null;
   /** Server CPU time between the load's start and end, when `serverPid` was given. */
   serverCpu: ServerCpu | null;
   /** Everything that went wrong: non-2xx samples, wrong JSON, requests never answered. */
@@ -424,9 +441,41 @@ export async function runLoad(options: LoadOptions): Promise<LoadResult> {
   };
   const stateAtStart = await observe();
 
+  // The writer: one check run at a time, at most `writesPerSecond`, while the load runs.
+  const writesPerSecond = options.writesPerSecond ?? 0;
+  const writeReleases = options.writeReleases ?? options.labelReleases ?? labelReleaseIds;
+  const writer = users.find((u) => can(u.role, 'check:run') && u.role !== 'distributor');
+  const writeLatencies: number[] = [];
+  const writeStatus: Record<string, number> = {};
+  let writesSent = 0;
+  let writeInFlight = false;
+  const writeOnce = () => {
+    if (writeInFlight || !writer) return;
+    writeInFlight = true;
+    const releaseId = writeReleases[writesSent % writeReleases.length]!;
+    writesSent += 1;
+    const started = performance.now();
+    fetch(new URL(`/api/releases/${encodeURIComponent(releaseId)}/checks`, baseUrl), {
+      method: 'POST',
+      headers: { cookie: cookies.get(writer.email) ?? '', origin: baseUrl },
+    })
+      .then(async (response) => {
+        await response.arrayBuffer();
+        writeStatus[response.status] = (writeStatus[response.status] ?? 0) + 1;
+        writeLatencies.push(performance.now() - started);
+      })
+      .catch(() => {
+        writeStatus.error = (writeStatus.error ?? 0) + 1;
+      })
+      .finally(() => {
+        writeInFlight = false;
+      });
+  };
+
   let cpuAtStart: CpuSample | null = null;
   log(`Load          ${options.connections} connections for ${options.durationSeconds} s…`);
   let polling: ReturnType<typeof setInterval> | null = null;
+  let writing: ReturnType<typeof setInterval> | null = null;
   const client = await runClientProcess(
     {
       baseUrl,
@@ -438,10 +487,23 @@ export async function runLoad(options: LoadOptions): Promise<LoadResult> {
     () => {
       cpuAtStart = options.serverPid ? readProcessCpu(options.serverPid) : null;
       if (upload) polling = setInterval(observeInBackground, pollIntervalMs);
+      if (writesPerSecond > 0 && writer) writing = setInterval(writeOnce, 1000 / writesPerSecond);
     },
   ).finally(() => {
     if (polling) clearInterval(polling);
+    if (writing) clearInterval(writing);
   });
+  while (writeInFlight) await new Promise((r) => setTimeout(r, 20));
+  const writes: WriteReport | null =
+    writesPerSecond > 0 && writer
+      ? {
+          perSecond: writesPerSecond,
+          what: `check runs by ${writer.email} (POST /api/releases/:id/checks)`,
+          sent: writesSent,
+          statusCounts: writeStatus,
+          latency: writeLatencies.length ? summarizeLatency(writeLatencies) : null,
+        }
+      : null;
   const cpuAtEnd = options.serverPid ? readProcessCpu(options.serverPid) : null;
   const stateAtEnd = await observe();
   const start = cpuAtStart as CpuSample | null;
@@ -492,6 +554,10 @@ export async function runLoad(options: LoadOptions): Promise<LoadResult> {
     else if (stats.validated === 0) problems.push(`${describeRequest(planned)}: no answer checked`);
     problems.push(...stats.problems);
   });
+  if (writes) {
+    const failed = Object.entries(writes.statusCounts).filter(([code]) => code !== '201');
+    for (const [code, n] of failed) problems.push(`${n} write(s) answered ${code}`);
+  }
   if (analysis && analysis.finalState !== 'done')
     problems.push(
       `the background analysis ended ${analysis.finalState}${analysis.finalError ? `: ${analysis.finalError}` : ''}`,
@@ -527,6 +593,7 @@ export async function runLoad(options: LoadOptions): Promise<LoadResult> {
     client,
     endpoints: endpointReports,
     analysis,
+    writes,
     serverCpu,
     problems,
     ok:
@@ -578,6 +645,21 @@ export function formatLoadReport(result: LoadResult): string {
     );
   }
   lines.push('');
+  const w = result.writes;
+  if (w) {
+    lines.push(
+      `Writes during the load: ${w.sent} ${w.what}, up to ${w.perSecond} per second; answers ${Object.entries(
+        w.statusCounts,
+      )
+        .map(([code, n]) => `${code}: ${n}`)
+        .join(', ')}${w.latency ? `; p50 ${ms(w.latency.p50Ms)}, p95 ${ms(w.latency.p95Ms)}` : ''}`,
+    );
+    lines.push(
+      '  each one a commit, after which every cached session and answer is computed afresh',
+    );
+  } else {
+    lines.push('Writes during the load: none');
+  }
   const a = result.analysis;
   if (a) {
     lines.push(

@@ -15,7 +15,7 @@ const releaseId = 'rel-load-fixture';
 let result: LoadResult;
 
 beforeAll(async () => {
-  await createFixtureRelease(releaseId);
+  await createFixtureRelease(releaseId, ['cd-master']);
   result = await runLoad({
     baseUrl: inject('baseUrl'),
     connections: 10,
@@ -23,6 +23,9 @@ beforeAll(async () => {
     analysis: { minutes: 5, releaseId },
     labelReleases: [...labelReleaseIds, releaseId],
     validateEvery: 1,
+    // Commits during the load, so cached answers are recomputed while it runs.
+    writesPerSecond: 4,
+    writeReleases: [releaseId],
   });
 }, 120_000);
 
@@ -31,6 +34,11 @@ afterAll(async () => {
 });
 
 describe('the load run (short)', () => {
+  it('wrote during the load, and every write succeeded', () => {
+    expect(result.writes?.sent).toBeGreaterThanOrEqual(10);
+    expect(result.writes?.statusCounts).toEqual({ 201: result.writes?.sent });
+  });
+
   it('has no connection errors, timeouts or non-2xx answers', () => {
     expect(result.client.errors).toBe(0);
     expect(result.client.timeouts).toBe(0);

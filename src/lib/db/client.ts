@@ -24,3 +24,8 @@ export function getDb(): Database {
   }
   return instance;
 }
+
+/** Whether `db` is the process-wide handle (not a script's or test's own, nor a transaction). */
+export function isAppDatabase(db: unknown): boolean {
+  return instance !== undefined && db === instance;
+}

@@ -1,7 +1,7 @@
 import { createHash, randomUUID } from 'node:crypto';
 import { and, asc, desc, eq, inArray, isNotNull, max, notInArray } from 'drizzle-orm';
 import type { AudioMeasurements } from '../audio/types';
-import type { Database } from '../db/client';
+import { type Database, isAppDatabase } from '../db/client';
 import {
   artworks,
   audioFiles,
@@ -29,6 +29,7 @@ import { getEnv } from './env';
 import { ApiError } from './errors';
 import { measurementsOf } from './measurements';
 import { resolveProfiles } from './profiles';
+import { appDataVersion, createReadCache } from './read-cache';
 import type { Actor } from './route';
 
 export interface CheckInputs {
@@ -45,8 +46,30 @@ export interface CheckInputs {
   trackTitles: { id: string; position: number; title: string; hasAudio: boolean }[];
 }
 
+/**
+ * Check inputs by release, shared by every user's checks and progress panels until the
+ * database changes (see read-cache.ts): after a commit the first reader gathers them again and
+ * the others reuse them. Callers treat the result as read-only.
+ */
+const checkInputsCache = createReadCache<CheckInputs>({
+  maxEntries: 200,
+  ttlMs: 5_000,
+  version: appDataVersion,
+});
+
 /** Gathers the release, its tracks' latest analysed audio and its target profiles. */
-export async function loadCheckInputs(
+export function loadCheckInputs(
+  db: Database,
+  organizationId: string,
+  releaseId: string,
+): Promise<CheckInputs> {
+  if (!isAppDatabase(db)) return gatherCheckInputs(db, organizationId, releaseId);
+  return checkInputsCache.get(`${organizationId}\u0000${releaseId}`, () =>
+    gatherCheckInputs(db, organizationId, releaseId),
+  );
+}
+
+async function gatherCheckInputs(
   db: Database,
   organizationId: string,
   releaseId: string,

@@ -22,9 +22,12 @@ export interface ReadCache<V extends object> {
   stats(): { hits: number; misses: number };
 }
 
-export interface ReadCacheOptions {
+export interface ReadCacheOptions<V> {
   maxEntries: number;
   ttlMs: number;
+  /** With `maxSize`: an entry's size (e.g. its length in characters), to bound the memory. */
+  sizeOf?: (value: V) => number;
+  maxSize?: number;
   /** Where to read the data version; null (a remote database) turns caching off. */
   version: () => DataVersion | null;
 }
@@ -34,8 +37,15 @@ interface Entry<V> {
   value: V;
 }
 
-export function createReadCache<V extends object>(options: ReadCacheOptions): ReadCache<V> {
-  const entries = new LRUCache<string, Entry<V>>({ max: options.maxEntries, ttl: options.ttlMs });
+export function createReadCache<V extends object>(options: ReadCacheOptions<V>): ReadCache<V> {
+  const { sizeOf, maxSize } = options;
+  const entries = new LRUCache<string, Entry<V>>({
+    max: options.maxEntries,
+    ttl: options.ttlMs,
+    ...(sizeOf && maxSize
+      ? { maxSize, sizeCalculation: (entry: Entry<V>) => Math.max(1, sizeOf(entry.value)) }
+      : {}),
+  });
   const inFlight = new Map<string, Promise<V>>();
   let hits = 0;
   let misses = 0;

@@ -96,6 +96,20 @@ export async function listReleases(db: Database, actor: Actor): Promise<ReleaseS
 }
 
 /** One release with its tracks, or null when it does not exist or the actor may not see it. */
+/** Whether the actor may see the release (one query; `getRelease` when its data is wanted). */
+export async function isReleaseVisible(
+  db: Database,
+  actor: Actor,
+  releaseId: string,
+): Promise<boolean> {
+  const [row] = await db
+    .select({ id: releases.id })
+    .from(releases)
+    .where(and(eq(releases.id, releaseId), visibleTo(actor)))
+    .limit(1);
+  return row !== undefined;
+}
+
 export async function getRelease(
   db: Database,
   actor: Actor,

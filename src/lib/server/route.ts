@@ -84,6 +84,9 @@ async function respond(run: () => Promise<Response> | Response): Promise<Respons
 const answers = createReadCache<{ body: string }>({
   maxEntries: 2000,
   ttlMs: 5_000,
+  // At most some 64 MB of answers (UTF-16 code units, up to two bytes each).
+  sizeOf: (answer) => answer.body.length,
+  maxSize: 32 * 1024 * 1024,
   version: appDataVersion,
 });
 

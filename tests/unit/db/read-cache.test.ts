@@ -150,6 +150,36 @@ describe('createReadCache', () => {
     watch.close();
   });
 
+  it('bounds its memory: the least recently used answers go first, an oversized one is not kept', async () => {
+    const { client, watch } = await freshDatabase('size');
+    const cache = createReadCache<{ body: string }>({
+      maxEntries: 100,
+      ttlMs: 60_000,
+      sizeOf: (v) => v.body.length,
+      maxSize: 100,
+      version: () => watch,
+    });
+    let computed = 0;
+    const answer = (length: number) => async () => {
+      computed += 1;
+      return { body: 'x'.repeat(length) };
+    };
+    await cache.get('a', answer(40));
+    await cache.get('b', answer(40));
+    await cache.get('a', answer(40)); // a hit, and now the more recently used
+    expect(computed).toBe(2);
+    await cache.get('c', answer(40)); // 120 > 100: b, the least recently used, goes
+    await cache.get('a', answer(40));
+    expect(computed).toBe(3);
+    await cache.get('b', answer(40));
+    expect(computed).toBe(4);
+    await cache.get('huge', answer(500));
+    await cache.get('huge', answer(500));
+    expect(computed).toBe(6);
+    client.close();
+    watch.close();
+  });
+
   it('caches nothing when the database is not a local file', async () => {
     const cache = createReadCache<{ n: number }>({
       maxEntries: 10,

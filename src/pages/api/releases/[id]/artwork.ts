@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { getDb } from '@/lib/db/client';
 import { ApiError } from '@/lib/server/errors';
 import { getArtworkInfo, readArtworkBody, uploadArtwork } from '@/lib/server/metadata/artwork';
-import { getRelease } from '@/lib/server/releases';
+import { isReleaseVisible } from '@/lib/server/releases';
 import { cachedJson, defineRoute, parseOrThrow } from '@/lib/server/route';
 import { sanitizeDisplayName } from '@/lib/server/uploads/files';
 
@@ -35,7 +35,7 @@ export const GET = defineRoute('release:read', async (rc) => {
   const { id } = parseOrThrow(paramsSchema, rc.ctx.params, 'release address');
   // Its image address is signed for minutes; the cache keeps an answer for seconds.
   return cachedJson(rc, async () => {
-    if (!(await getRelease(getDb(), rc.actor, id))) {
+    if (!(await isReleaseVisible(getDb(), rc.actor, id))) {
       throw new ApiError('not_found', 'No release with that id is visible to you.');
     }
     return { artwork: await getArtworkInfo(getDb(), id) };

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { getDb } from '@/lib/db/client';
 import { ApiError } from '@/lib/server/errors';
 import { getCurrentArtwork } from '@/lib/server/metadata/artwork';
-import { getRelease } from '@/lib/server/releases';
+import { isReleaseVisible } from '@/lib/server/releases';
 import { defineRoute, parseOrThrow } from '@/lib/server/route';
 import { getObjectStream, getS3 } from '@/lib/storage/s3';
 
@@ -12,7 +12,7 @@ const paramsSchema = z.object({ id: z.string().min(1).max(64) });
 /** The bytes of the release's current cover art. */
 export const GET = defineRoute('release:read', async ({ ctx, actor }) => {
   const { id } = parseOrThrow(paramsSchema, ctx.params, 'release address');
-  if (!(await getRelease(getDb(), actor, id))) {
+  if (!(await isReleaseVisible(getDb(), actor, id))) {
     throw new ApiError('not_found', 'No release with that id is visible to you.');
   }
   const row = await getCurrentArtwork(getDb(), id);
