@@ -105,6 +105,30 @@ describe('read cache', () => {
     expect(after.status).toBe(401);
   });
 
+  it('shares an answer only among those who see the same releases', async () => {
+    const engineer = await signedIn(demoEmails.engineer);
+    const coordinator = await signedIn(demoEmails.coordinator);
+    const distributor = await signedIn(demoEmails.distributor);
+    const fromEngineer = await (await engineer.get('/api/releases/rel-night-ferries')).text();
+    expect(await (await coordinator.get('/api/releases/rel-night-ferries')).text()).toBe(
+      fromEngineer,
+    );
+    // Not shared with the distributor: the label's cached answers never reach them.
+    expect((await distributor.get('/api/releases/rel-night-ferries')).status).toBe(404);
+    expect(await visibleIds(engineer)).toContain('rel-night-ferries');
+    expect(await visibleIds(distributor)).not.toContain('rel-night-ferries');
+    // The progress panel offers actions by role: each role its own answer.
+    const canWaiveAudio = async (client: Awaited<ReturnType<typeof signedIn>>) =>
+      (
+        (await (await client.get('/api/releases/rel-night-ferries/workflow')).json()) as {
+          actions: string[];
+          canWaive: { audio: boolean };
+        }
+      ).canWaive.audio;
+    expect(await canWaiveAudio(engineer)).toBe(true);
+    expect(await canWaiveAudio(coordinator)).toBe(false);
+  });
+
   it('stops showing a release to the distributor as soon as its share is revoked', async () => {
     const distributor = await signedIn(demoEmails.distributor);
     expect(await visibleIds(distributor)).toContain('rel-signal-hill');

@@ -1,6 +1,6 @@
 import type { APIContext, APIRoute } from 'astro';
 import type { z } from 'zod';
-import { can, type Permission, type Role } from '../auth/permissions';
+import { can, type Permission, type Role, seesOnlySharedReleases } from '../auth/permissions';
 import { ApiError } from './errors';
 import { appDataVersion, createReadCache } from './read-cache';
 
@@ -91,17 +91,41 @@ const answers = createReadCache<{ body: string }>({
 });
 
 /**
+ * Who else may be handed an answer computed for this actor:
+ * - `user`: nobody else (the safe default);
+ * - `role`: members of the same organisation with the same role (the answer depends on the
+ *   role, e.g. the actions it offers, and not on who holds it);
+ * - `visibility`: members of the same organisation who see the same releases. Every role
+ *   that sees all of the label's releases shares one answer; a distributor, who sees only
+ *   what was shared with them, gets their own. Only for answers that read nothing of the actor
+ *   but which releases they can see (the route has already checked the permission).
+ */
+export type AnswerAudience = 'user' | 'role' | 'visibility';
+
+function audienceKey(actor: Actor, audience: AnswerAudience): string {
+  if (audience === 'user') return `user:${actor.userId}:${actor.role}`;
+  if (audience === 'role') return `role:${actor.role}`;
+  return seesOnlySharedReleases(actor.role) ? `shared-with:${actor.userId}` : 'label';
+}
+
+/**
  * Answers a GET with `compute()`'s JSON, from the read cache when nothing was committed since it
- * was computed for this same user, organisation, role and URL. `liveTag` names state outside
- * the database that the answer shows (it must change when that state does). Only answers that
- * depend on nothing else may use this; errors thrown by `compute` are never cached.
+ * was computed for the same organisation, URL and audience (see `AnswerAudience`). `liveTag`
+ * names state outside the database that the answer shows (it must change when that state
+ * does). Only answers that depend on nothing else may use this; errors thrown by `compute` are
+ * never cached.
  */
 export async function cachedJson(
   { ctx, actor }: RouteContext,
   compute: () => Promise<unknown>,
-  options: { liveTag?: string; headers?: Record<string, string> } = {},
+  options: { audience?: AnswerAudience; liveTag?: string; headers?: Record<string, string> } = {},
 ): Promise<Response> {
-  const key = [actor.userId, actor.organizationId, actor.role, ctx.url.pathname, ctx.url.search];
+  const key = [
+    actor.organizationId,
+    audienceKey(actor, options.audience ?? 'user'),
+    ctx.url.pathname,
+    ctx.url.search,
+  ];
   const { body } = await answers.get(
     key.join('\u0000'),
     async () => ({ body: JSON.stringify(await compute()) }),

@@ -8,9 +8,13 @@ const paramsSchema = z.object({ id: z.string().min(1).max(64) });
 
 export const GET = defineRoute('release:read', async (rc) => {
   const { id } = parseOrThrow(paramsSchema, rc.ctx.params, 'release address');
-  return cachedJson(rc, async () => {
-    const release = await getRelease(getDb(), rc.actor, id);
-    if (!release) throw new ApiError('not_found', 'No release with that id is visible to you.');
-    return release;
-  });
+  return cachedJson(
+    rc,
+    async () => {
+      const release = await getRelease(getDb(), rc.actor, id);
+      if (!release) throw new ApiError('not_found', 'No release with that id is visible to you.');
+      return release;
+    },
+    { audience: 'visibility' },
+  );
 });

@@ -3,5 +3,7 @@ import { listReleases } from '@/lib/server/releases';
 import { cachedJson, defineRoute } from '@/lib/server/route';
 
 export const GET = defineRoute('release:list', async (rc) =>
-  cachedJson(rc, async () => ({ releases: await listReleases(getDb(), rc.actor) })),
+  cachedJson(rc, async () => ({ releases: await listReleases(getDb(), rc.actor) }), {
+    audience: 'visibility',
+  }),
 );

@@ -34,12 +34,16 @@ function decodeFileNameHeader(raw: string): string {
 export const GET = defineRoute('release:read', async (rc) => {
   const { id } = parseOrThrow(paramsSchema, rc.ctx.params, 'release address');
   // Its image address is signed for minutes; the cache keeps an answer for seconds.
-  return cachedJson(rc, async () => {
-    if (!(await isReleaseVisible(getDb(), rc.actor, id))) {
-      throw new ApiError('not_found', 'No release with that id is visible to you.');
-    }
-    return { artwork: await getArtworkInfo(getDb(), id) };
-  });
+  return cachedJson(
+    rc,
+    async () => {
+      if (!(await isReleaseVisible(getDb(), rc.actor, id))) {
+        throw new ApiError('not_found', 'No release with that id is visible to you.');
+      }
+      return { artwork: await getArtworkInfo(getDb(), id) };
+    },
+    { audience: 'visibility' },
+  );
 });
 
 /** Uploads new cover art: the body is the image; X-File-Name carries its name. */

@@ -8,7 +8,7 @@ const paramsSchema = z.object({ id: z.string().min(1).max(64) });
 /** The latest check run of the release (stale when anything it read has changed). */
 export const GET = defineRoute('finding:read', async (rc) => {
   const { id } = parseOrThrow(paramsSchema, rc.ctx.params, 'release address');
-  return cachedJson(rc, () => latestCheckReport(getDb(), rc.actor, id));
+  return cachedJson(rc, () => latestCheckReport(getDb(), rc.actor, id), { audience: 'visibility' });
 });
 
 /** Runs every target profile's checks now and records the run. */

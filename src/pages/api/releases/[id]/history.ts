@@ -9,9 +9,13 @@ import { cachedJson, defineRoute, parseOrThrow } from '@/lib/server/route';
 export const GET = defineRoute('audit:read', async (rc) => {
   const { id } = parseOrThrow(releaseParams, rc.ctx.params, 'release address');
   const db = getDb();
-  return cachedJson(rc, async () => {
-    if (!(await isReleaseVisible(db, rc.actor, id)))
-      throw new ApiError('not_found', 'No release with that id is visible to you.');
-    return { events: await listAuditEvents(db, rc.actor.organizationId, { releaseId: id }) };
-  });
+  return cachedJson(
+    rc,
+    async () => {
+      if (!(await isReleaseVisible(db, rc.actor, id)))
+        throw new ApiError('not_found', 'No release with that id is visible to you.');
+      return { events: await listAuditEvents(db, rc.actor.organizationId, { releaseId: id }) };
+    },
+    { audience: 'visibility' },
+  );
 });

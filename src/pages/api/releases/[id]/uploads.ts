@@ -30,7 +30,11 @@ export const GET = defineRoute('audio:upload', async (rc) => {
       return getUploadStatus(db, id, maxUploadBytes());
     },
     // Analysis progress is kept in memory, not in the database.
-    { liveTag: analysisStateTag(), headers: { 'cache-control': 'no-store' } },
+    {
+      audience: 'visibility',
+      liveTag: analysisStateTag(),
+      headers: { 'cache-control': 'no-store' },
+    },
   );
 });
 

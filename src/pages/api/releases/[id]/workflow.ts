@@ -6,5 +6,6 @@ import { getWorkflowStatus } from '@/lib/server/workflow';
 /** Sign-offs, blockers, waivers, packages and shares of the release. */
 export const GET = defineRoute('finding:read', async (rc) => {
   const { id } = parseOrThrow(releaseParams, rc.ctx.params, 'release address');
-  return cachedJson(rc, () => getWorkflowStatus(getDb(), rc.actor, id));
+  // Its actions and permissions follow the role.
+  return cachedJson(rc, () => getWorkflowStatus(getDb(), rc.actor, id), { audience: 'role' });
 });
