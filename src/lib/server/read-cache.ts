@@ -9,16 +9,16 @@ import { getEnv } from './env';
  * *before* the answer was computed, plus an optional tag for state that lives outside the
  * database (analysis progress). A lookup hits only when the tags still match, so a commit by
  * anyone, in this process or another, makes every older entry unreachable at once; no write
- * path has to remember to invalidate anything. Entries also expire after `ttlMs`, which bounds
- * anything time-dependent an answer may hold (signed URLs live for minutes). Concurrent misses
+ * path has to remember to invalidate anything. Entries also expire after `ttlMs`, a bound on
+ * anything time-dependent an answer might come to hold. Concurrent misses
  * for the same key share one computation.
  *
- * The keys name who is asking (user, organisation, role) as well as what, so an answer shaped
- * by permissions is never handed to someone else.
+ * A key must name who may share the answer as well as what it is (see `cachedJson` in
+ * route.ts), so an answer shaped by permissions is never handed to someone else.
  */
 export interface ReadCache<V extends object> {
   get(key: string, compute: () => Promise<V>, liveTag?: string): Promise<V>;
-  /** Counts since start, for tests and the load report. */
+  /** Counts since start (for tests). */
   stats(): { hits: number; misses: number };
 }
 

@@ -95,7 +95,6 @@ export async function listReleases(db: Database, actor: Actor): Promise<ReleaseS
   });
 }
 
-/** One release with its tracks, or null when it does not exist or the actor may not see it. */
 /** Whether the actor may see the release (one query; `getRelease` when its data is wanted). */
 export async function isReleaseVisible(
   db: Database,
@@ -110,6 +109,7 @@ export async function isReleaseVisible(
   return row !== undefined;
 }
 
+/** One release with its tracks, or null when it does not exist or the actor may not see it. */
 export async function getRelease(
   db: Database,
   actor: Actor,

@@ -33,7 +33,6 @@ function decodeFileNameHeader(raw: string): string {
 /** The release's current cover art (facts and an address for the image), or null. */
 export const GET = defineRoute('release:read', async (rc) => {
   const { id } = parseOrThrow(paramsSchema, rc.ctx.params, 'release address');
-  // Its image address is signed for minutes; the cache keeps an answer for seconds.
   return cachedJson(
     rc,
     async () => {
