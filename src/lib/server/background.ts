@@ -22,8 +22,6 @@ export function ensureBackgroundWork(): void {
       (n) => n > 0 && console.log(`[packaging] ${n} interrupted package build(s) marked failed`),
     )
     .catch((error) => console.error('[packaging] recovery failed', error));
-  void resumeInterruptedWork(db).catch((error) =>
-    console.error('[uploads] recovery failed', error),
-  );
+  void resumeInterruptedWork(db);
   void flushOutbox(db).catch(() => undefined);
 }

@@ -5,12 +5,13 @@
  * request cost more than the rest of the request together.
  */
 import { inArray } from 'drizzle-orm';
+import { LRUCache } from 'lru-cache';
 import type { AudioMeasurements } from '../audio/types';
 import type { Database } from '../db/client';
 import { audioFiles } from '../db/schema';
 
-const limit = 500;
-const cache = new Map<string, AudioMeasurements | null>();
+/** Measurements (null for a file without any) by file id and analysis time; 500 at most. */
+const cache = new LRUCache<string, { value: AudioMeasurements | null }>({ max: 500 });
 
 const keyOf = (file: { id: string; analyzedAt: Date | null }) =>
   `${file.id}@${file.analyzedAt?.getTime() ?? 0}`;
@@ -23,14 +24,9 @@ export async function measurementsOf(
   const found = new Map<string, AudioMeasurements | null>();
   const missing: string[] = [];
   for (const file of files) {
-    const key = keyOf(file);
-    if (cache.has(key)) {
-      const value = cache.get(key) ?? null;
-      // Refresh its place: the map's order is least recently used first.
-      cache.delete(key);
-      cache.set(key, value);
-      found.set(file.id, value);
-    } else missing.push(file.id);
+    const hit = cache.get(keyOf(file));
+    if (hit) found.set(file.id, hit.value);
+    else missing.push(file.id);
   }
   if (missing.length) {
     const rows = await db
@@ -44,9 +40,8 @@ export async function measurementsOf(
     for (const row of rows) {
       const value = (row.measurements as AudioMeasurements | null) ?? null;
       found.set(row.id, value);
-      if (row.analyzedAt) cache.set(keyOf(row), value);
+      if (row.analyzedAt) cache.set(keyOf(row), { value });
     }
-    while (cache.size > limit) cache.delete(cache.keys().next().value as string);
   }
   return found;
 }

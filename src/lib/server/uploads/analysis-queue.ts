@@ -27,7 +27,7 @@ const queued: string[] = [];
 const queuedSet = new Set<string>();
 let active = 0;
 let database: Database | null = null;
-let resumed = false;
+let resuming: Promise<void> | null = null;
 
 /** Upload ids being received by this process right now (see `markUploadActive`). */
 const activeUploads = new Set<string>();
@@ -58,11 +58,18 @@ export function enqueueAnalysis(db: Database, audioFileId: string): void {
 
 /**
  * Once per process: queues every analysis a previous process left 'pending' or 'running',
- * and marks uploads it was receiving as failed (their bytes were never referenced).
+ * and marks uploads it was receiving as failed (their bytes were never referenced). Every
+ * caller waits for that one pass to finish, so no upload starts or is reported before it. A
+ * failed pass is logged, not repeated: uploads go on.
  */
-export async function resumeInterruptedWork(db: Database): Promise<void> {
-  if (resumed) return;
-  resumed = true;
+export function resumeInterruptedWork(db: Database): Promise<void> {
+  resuming ??= resume(db).catch((error: unknown) =>
+    console.error('[uploads] recovery failed', error),
+  );
+  return resuming;
+}
+
+async function resume(db: Database): Promise<void> {
   database = db;
   const waiting = await db
     .select({ id: audioFiles.id })
