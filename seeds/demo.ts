@@ -14,6 +14,7 @@ import type { Auth } from '../src/lib/auth/auth';
 import type { Role } from '../src/lib/auth/permissions';
 import type { Database } from '../src/lib/db/client';
 import {
+  artworks,
   audioFiles,
   auditEvents,
   isrcAllocations,
@@ -29,8 +30,12 @@ import {
   user,
 } from '../src/lib/db/schema';
 import { runChecks } from '../src/lib/server/checks';
-import { startPackageBuild, waitForPackageBuilds } from '../src/lib/server/packaging';
+import { uploadArtwork } from '../src/lib/server/metadata/artwork';
+import { waitForPackageBuilds } from '../src/lib/server/packaging';
+import type { Actor } from '../src/lib/server/route';
+import { approveRelease, signOff } from '../src/lib/server/workflow';
 import { objectExists, putObject } from '../src/lib/storage/s3';
+import { coverArtPng } from './cover-art';
 import { type SynthSpec, synthesizeWav } from './synth';
 
 export const demoPassword = 'quayside-demo';
@@ -60,7 +65,7 @@ interface DemoRelease {
   upcEan: string | null;
   releaseDate: string;
   genre: string;
-  state: 'draft' | 'in_review' | 'approved';
+  state: 'draft' | 'in_review';
   profiles: string[];
   sharedWithDistributor: boolean;
   tracks: DemoTrack[];
@@ -162,7 +167,8 @@ export const demoReleases: DemoRelease[] = [
     upcEan: '2001234500029',
     releaseDate: '2027-01-22',
     genre: 'Folk',
-    state: 'approved',
+    // Approved and packaged by the seed through the product's own workflow (see below).
+    state: 'in_review',
     profiles: ['streaming-standard'],
     sharedWithDistributor: true,
     tracks: [
@@ -391,8 +397,10 @@ async function uploadMissingAudio(
 }
 
 /**
- * The approved demo release gets its checks run and its package built (as approving it in
- * the product would), so the distributor has something to download on first start.
+ * Signal Hill goes the whole way, as the label would take it in the product: the coordinator
+ * adds its cover, runs the checks, the engineer signs off the audio, the coordinator the
+ * metadata and approves, and the package is built. So the distributor has something to
+ * download on first start, and the release's page tells a consistent story.
  */
 async function packageApprovedDemoRelease(db: Database): Promise<void> {
   const releaseId = 'rel-signal-hill';
@@ -402,16 +410,47 @@ async function packageApprovedDemoRelease(db: Database): Promise<void> {
     .where(eq(packages.releaseId, releaseId))
     .limit(1);
   if (existing) return;
-  const coordinator = demoUsers.find((u) => u.role === 'coordinator');
-  const [row] = coordinator
-    ? await db.select({ id: user.id }).from(user).where(eq(user.email, coordinator.email)).limit(1)
-    : [];
-  if (!row || !coordinator) return;
-  await runChecks(
-    db,
-    { userId: row.id, userName: coordinator.name, organizationId: label.id, role: 'coordinator' },
-    releaseId,
-  );
-  await startPackageBuild(db, { releaseId, organizationId: label.id, createdBy: row.id });
+  const actorFor = async (role: Role): Promise<Actor | null> => {
+    const person = demoUsers.find((u) => u.role === role);
+    const [row] = person
+      ? await db.select({ id: user.id }).from(user).where(eq(user.email, person.email)).limit(1)
+      : [];
+    return person && row
+      ? { userId: row.id, userName: person.name, organizationId: label.id, role }
+      : null;
+  };
+  const coordinator = await actorFor('coordinator');
+  const engineer = await actorFor('engineer');
+  if (!coordinator || !engineer) return;
+  const [release] = await db
+    .select({ state: releases.state, version: releases.version })
+    .from(releases)
+    .where(eq(releases.id, releaseId));
+  if (release?.state !== 'in_review') return;
+  const [art] = await db
+    .select({ id: artworks.id })
+    .from(artworks)
+    .where(eq(artworks.releaseId, releaseId))
+    .limit(1);
+  if (!art) {
+    await uploadArtwork(db, coordinator, releaseId, {
+      bytes: coverArtPng(3000, {
+        skyTop: [38, 52, 84],
+        skyHorizon: [214, 140, 96],
+        sun: [246, 214, 160],
+        land: [28, 30, 40],
+        water: [30, 48, 72],
+      }),
+      originalName: 'Signal Hill front cover.png',
+    });
+  }
+  await runChecks(db, coordinator, releaseId);
+  await signOff(db, engineer, releaseId, 'audio');
+  await signOff(db, coordinator, releaseId, 'metadata');
+  const [current] = await db
+    .select({ version: releases.version })
+    .from(releases)
+    .where(eq(releases.id, releaseId));
+  await approveRelease(db, coordinator, releaseId, current?.version ?? release.version);
   await waitForPackageBuilds();
 }
