@@ -1,5 +1,6 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { useId } from 'react';
+import { formatBytes } from '@/lib/api/format';
 import { artworkResponseSchema } from '@/lib/api/metadata-schemas';
 import { can } from '@/lib/auth/permissions';
 import { ApiRequestError, getJson } from '../api-client';
@@ -66,7 +67,7 @@ export function ArtworkPanel({ release, role }: PanelProps) {
         {art ? (
           <p className="figures" data-testid="artwork-facts">
             {art.format.toUpperCase()} · {art.widthPx} × {art.heightPx} px ·{' '}
-            {(art.sizeBytes / 1024 / 1024).toFixed(1)} MB · {art.originalName}
+            {formatBytes(art.sizeBytes)} · {art.originalName}
           </p>
         ) : (
           <p className="text-slate">

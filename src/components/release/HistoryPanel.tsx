@@ -104,7 +104,8 @@ export function HistoryPanel({ releaseId }: { releaseId: string }) {
   return (
     <details className="rounded-lg border border-mist bg-white">
       <summary className="cursor-pointer px-4 py-3 font-medium">
-        {query.data.events.length} events, newest first
+        {query.data.events.length} {query.data.events.length === 1 ? 'event' : 'events'}, newest
+        first
       </summary>
       <ul className="divide-y divide-mist border-t border-mist">
         {query.data.events.map((e) => (
