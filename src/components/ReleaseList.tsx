@@ -88,7 +88,7 @@ function ReleaseTable() {
                 </a>
                 <div className="text-slate">{r.artist}</div>
               </td>
-              <td className="figures px-4 py-3">{r.catalogueNumber ?? '–'}</td>
+              <td className="figures whitespace-nowrap px-4 py-3">{r.catalogueNumber ?? '–'}</td>
               <td className="px-4 py-3">
                 <ReleaseStateBadge state={r.state} />
               </td>
